@@ -1,0 +1,143 @@
+/**
+ * The one typed contract between the service and its doors (Electron IPC, loopback HTTP, CLI)
+ * and the renderer. Plain JSON-able data only. Change it deliberately: the CLI's JSON output
+ * and the browser API are public interfaces.
+ */
+import type { InputKind, TransformName } from './engine/transform.ts';
+import type { CapSetting } from './engine/types.ts';
+
+// ---------- Cohort and QC ----------
+
+export type Severity = 'error' | 'warning';
+
+/** One problem found while reading a study. `file` is relative to the cohort folder where possible. */
+export interface QcFinding {
+  severity: Severity;
+  /** A stable machine-readable code, e.g. 'not-square', 'asymmetric', 'nan-row', 'duplicate-id'. */
+  code: string;
+  file: string | null;
+  subject: string | null;
+  message: string;
+  /** 0-based [row, column] of the first offending cell, when there is one. */
+  where?: [number, number];
+}
+
+export type CovariateValue = string | number | null;
+
+/** Where a subject's matrix lives. */
+export interface MatrixSource {
+  /** Absolute path of the file. */
+  file: string;
+  /** For a .mat file: the variable name. */
+  variable?: string;
+  /** For a 3-D stack (subjects × N × N): the subject's position in it. */
+  stackIndex?: number;
+  /** The file holds region time series (T × N) to be correlated rather than a matrix. */
+  timeSeries?: boolean;
+}
+
+export interface SubjectEntry {
+  id: string;
+  source: MatrixSource;
+  /** The participants table row, column → value (numbers parsed; 'n/a' and empty → null). */
+  covariates: Record<string, CovariateValue>;
+  /** false when an error finding excludes the subject. */
+  usable: boolean;
+}
+
+export interface NodeInfo {
+  index: number;
+  label: string;
+  network: string | null;
+  x: number | null;
+  y: number | null;
+  z: number | null;
+}
+
+export interface ColumnInfo {
+  name: string;
+  kind: 'numeric' | 'categorical';
+  levels?: string[];
+  missing: number;
+}
+
+export interface CohortReport {
+  root: string;
+  /** The cohort's number of regions (the most common N among readable matrices), or null when none is readable. */
+  n: number | null;
+  subjects: SubjectEntry[];
+  columns: ColumnInfo[];
+  nodes: NodeInfo[] | null;
+  findings: QcFinding[];
+  /** Regions that are NaN (dead) in some subject: region index → subject ids. */
+  deadRegions: Array<{ index: number; label: string; subjects: string[] }>;
+}
+
+// ---------- Analysis settings ----------
+
+export interface AnalysisSettings {
+  input: InputKind;
+  transform: TransformName;
+  maxDim: 1 | 2;
+  cap: CapSetting;
+  representatives: boolean;
+  /** Intervals shorter than this count as noise in the "above floor" statistics. */
+  persistenceFloor: number;
+  /** Points of the shared grid for curves; the range is the cohort's filtration range unless given. */
+  gridPoints: number;
+  gridRange: [number, number] | null;
+  landscapeLevels: number;
+  /** Regions to drop from every subject (e.g. dead regions), 0-based. */
+  dropRegions: number[];
+}
+
+export interface StatsSettings {
+  groupColumn: string | null;
+  covariates: string[];
+  permutations: number;
+  seed: number;
+}
+
+// ---------- Runs and progress ----------
+
+export interface ProgressEvent {
+  runId: string;
+  phase:
+    | 'filtrations'
+    | 'group-filtrations'
+    | 'features'
+    | 'statistics'
+    | 'export'
+    | 'done'
+    | 'cancelled'
+    | 'failed';
+  done: number;
+  total: number;
+  reused: number;
+  currentSubject: string | null;
+  elapsedMs: number;
+  etaMs: number | null;
+  failures: Array<{ subject: string; reason: string }>;
+  message?: string;
+}
+
+export interface RunSummary {
+  runId: string;
+  status: 'done' | 'cancelled' | 'failed';
+  computed: number;
+  reused: number;
+  failures: Array<{ subject: string; reason: string }>;
+  outDir: string | null;
+}
+
+/** Provenance carried by every result and export. */
+export interface Provenance {
+  tool: 'loopwise';
+  version: string;
+  engineVersion: string;
+  createdAt: string;
+  settings: AnalysisSettings;
+  stats?: StatsSettings;
+  /** Subject id → SHA-256 of the matrix bytes as read. */
+  inputHashes: Record<string, string>;
+}

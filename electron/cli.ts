@@ -1,0 +1,47 @@
+/**
+ * The `loopwise` command-line door. Each command lives in electron/cli/<name>.ts and returns
+ * an exit code: 0 success, 1 the job failed (e.g. no usable subject), 2 a usage or input error.
+ */
+import { diagramCommand } from './cli/diagram.ts';
+
+export interface CliIO {
+  out: (text: string) => void;
+  err: (text: string) => void;
+}
+
+export type Command = (args: string[], io: CliIO) => Promise<number>;
+
+const COMMANDS: Record<string, { run: Command; summary: string }> = {
+  diagram: {
+    run: diagramCommand,
+    summary: 'persistence diagrams (and cycle representatives) of matrix files, as JSON',
+  },
+};
+
+export const USAGE = `usage: loopwise <command> [options]
+
+commands:
+${Object.entries(COMMANDS)
+  .map(([name, c]) => `  ${name.padEnd(10)} ${c.summary}`)
+  .join('\n')}
+
+Run 'loopwise <command> --help' for a command's options.`;
+
+const stdio: CliIO = {
+  out: (t) => process.stdout.write(t),
+  err: (t) => process.stderr.write(t),
+};
+
+export async function main(argv: string[], io: CliIO = stdio): Promise<number> {
+  const [name, ...rest] = argv;
+  if (!name || name === '--help' || name === '-h') {
+    io.out(USAGE + '\n');
+    return name ? 0 : 2;
+  }
+  const command = COMMANDS[name];
+  if (!command) {
+    io.err(`loopwise: unknown command '${name}'\n${USAGE}\n`);
+    return 2;
+  }
+  return command.run(rest, io);
+}

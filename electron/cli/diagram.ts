@@ -1,0 +1,148 @@
+/**
+ * `loopwise diagram FILE... [options]`: the persistence diagrams of each matrix file, one JSON
+ * object per line on stdout, in the order given. A file that cannot be read or analysed gets one
+ * line on stderr naming it and the problem; the others are still computed; the exit code is then 2.
+ */
+import { computePersistence } from '../engine/persistence.ts';
+import { DEFAULT_TRANSFORM, MatrixError, TRANSFORMS_FOR, toDistances } from '../engine/transform.ts';
+import type { InputKind, TransformName } from '../engine/transform.ts';
+import type { CapSetting, PersistenceResult } from '../engine/types.ts';
+import { ENGINE_VERSION } from '../engine/version.ts';
+import { readMatrixFile } from '../io/read-matrix.ts';
+import type { CliIO } from '../cli.ts';
+import { UsageError, choiceOption, numberOption, parseArgs } from './args.ts';
+
+export const DIAGRAM_HELP = `usage: loopwise diagram FILE... [options]
+
+Prints one JSON object per FILE and line:
+  {"file", "diagrams": {"0": [[birth, death], ...], "1": [...]}, "representatives": {"1": [...]}, "settings": {...}}
+death is null for an interval that never dies; node indices are 0-based in file order.
+
+options:
+  --input correlation|weight|distance   what the matrix holds (default correlation)
+  --transform NAME      correlation: one-minus (default), one-minus-abs, sqrt
+                        weight: inverse (default), neg-log; distance: identity
+  --max-dim 1|2         highest homology dimension (default 1)
+  --cap-distance X      stop the filtration at distance X
+  --cap-density P       stop at the distance below which a fraction P of all edges lie (0 < P ≤ 1)
+  --representatives     add a cycle representative for every H1 interval
+  --h0-representatives  add the merge tree with the nodes of each absorbed component
+  --keep-zero           keep intervals of zero length
+`;
+
+const INPUTS = ['correlation', 'weight', 'distance'] as const;
+const ALL_TRANSFORMS = ['one-minus', 'one-minus-abs', 'sqrt', 'inverse', 'neg-log', 'identity'] as const;
+
+export interface DiagramSettings {
+  input: InputKind;
+  transform: TransformName;
+  maxDim: 1 | 2;
+  cap: CapSetting;
+  representatives: boolean;
+  h0Representatives: boolean;
+  keepZeroLength: boolean;
+}
+
+export function parseDiagramArgs(args: string[]): { files: string[]; settings: DiagramSettings } {
+  const p = parseArgs(args, {
+    values: ['input', 'transform', 'max-dim', 'cap-distance', 'cap-density'],
+    flags: ['representatives', 'h0-representatives', 'keep-zero', 'help'],
+  });
+  if (p.flags.has('help')) return { files: [], settings: null as unknown as DiagramSettings };
+  if (p.positionals.length === 0) throw new UsageError('no FILE given');
+  const input = choiceOption(p, 'input', INPUTS) ?? 'correlation';
+  const transform = choiceOption(p, 'transform', ALL_TRANSFORMS) ?? DEFAULT_TRANSFORM[input];
+  if (!TRANSFORMS_FOR[input].includes(transform)) {
+    throw new UsageError(
+      `--transform ${transform} does not apply to --input ${input} (use ${TRANSFORMS_FOR[input].join(', ')})`,
+    );
+  }
+  const maxDim = (numberOption(p, 'max-dim', (x) => x === 1 || x === 2, '1 or 2') ?? 1) as 1 | 2;
+  const capDistance = numberOption(p, 'cap-distance', (x) => x >= 0, 'a distance ≥ 0');
+  const capDensity = numberOption(p, 'cap-density', (x) => x > 0 && x <= 1, 'a fraction in (0, 1]');
+  if (capDistance !== undefined && capDensity !== undefined)
+    throw new UsageError('give --cap-distance or --cap-density, not both');
+  const cap: CapSetting =
+    capDistance !== undefined
+      ? { kind: 'distance', value: capDistance }
+      : capDensity !== undefined
+        ? { kind: 'density', value: capDensity }
+        : { kind: 'none' };
+  return {
+    files: p.positionals,
+    settings: {
+      input,
+      transform,
+      maxDim,
+      cap,
+      representatives: p.flags.has('representatives'),
+      h0Representatives: p.flags.has('h0-representatives'),
+      keepZeroLength: p.flags.has('keep-zero'),
+    },
+  };
+}
+
+/** The JSON object printed for one file (Infinity → null). */
+export function diagramJson(
+  file: string,
+  result: PersistenceResult,
+  settings: DiagramSettings,
+): Record<string, unknown> {
+  const diagrams: Record<string, Array<[number, number | null]>> = {};
+  result.diagrams.forEach((dg, d) => {
+    diagrams[String(d)] = dg.map((iv) => [iv.birth, Number.isFinite(iv.death) ? iv.death : null]);
+  });
+  const out: Record<string, unknown> = { file, diagrams };
+  if (result.representatives) {
+    out.representatives = {
+      '1': result.representatives.map((r) => ({
+        birth: r.birth,
+        death: Number.isFinite(r.death) ? r.death : null,
+        edges: r.edges,
+        nodes: r.nodes,
+      })),
+    };
+  }
+  if (settings.h0Representatives) out.mergeTree = result.mergeTree;
+  out.settings = {
+    ...settings,
+    threshold: Number.isFinite(result.threshold) ? result.threshold : null,
+    thresholdSource: result.thresholdSource,
+    n: result.n,
+    engineVersion: ENGINE_VERSION,
+  };
+  return out;
+}
+
+export async function diagramCommand(args: string[], io: CliIO): Promise<number> {
+  let parsed;
+  try {
+    parsed = parseDiagramArgs(args);
+  } catch (e) {
+    if (e instanceof UsageError) {
+      io.err(`loopwise diagram: ${e.message}\n${DIAGRAM_HELP}`);
+      return 2;
+    }
+    throw e;
+  }
+  if (parsed.files.length === 0) {
+    io.out(DIAGRAM_HELP);
+    return 0;
+  }
+  const { files, settings } = parsed;
+  let code = 0;
+  for (const file of files) {
+    try {
+      const matrix = await readMatrixFile(file);
+      const distances = toDistances(matrix, { input: settings.input, transform: settings.transform });
+      const result = computePersistence(distances, settings);
+      io.out(JSON.stringify(diagramJson(file, result, settings)) + '\n');
+    } catch (e) {
+      const msg =
+        e instanceof MatrixError ? `${file}: ${e.message}` : e instanceof Error ? e.message : String(e);
+      io.err(`loopwise diagram: ${msg.startsWith(file) ? msg : `${file}: ${msg}`}\n`);
+      code = 2;
+    }
+  }
+  return code;
+}
