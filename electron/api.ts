@@ -141,3 +141,96 @@ export interface Provenance {
   /** Subject id → SHA-256 of the matrix bytes as read. */
   inputHashes: Record<string, string>;
 }
+
+// ---------- Results and the service's methods ----------
+
+/** A rectangular table as written to TSV/CSV: column names and rows (null = missing, written as 'n/a'). */
+export interface Table {
+  columns: string[];
+  rows: Array<Array<string | number | null>>;
+}
+
+/** A persistence diagram as JSON: [birth, death] pairs, death null when the class never dies. */
+export type DiagramJson = Array<[number, number | null]>;
+
+export interface CurveBand {
+  group: string;
+  /** e.g. 'betti0', 'betti1', 'euler', 'landscape1-1'. */
+  curve: string;
+  grid: number[];
+  mean: number[];
+  lower: number[];
+  upper: number[];
+}
+
+export interface CohortResults {
+  runId: string;
+  provenance: Provenance;
+  /** One row per subject, one column per scalar feature (plus id, group, covariates). */
+  features: Table;
+  /** Long form: subject, node, label, network, measure, value. */
+  nodeScores: Table;
+  groupCurves: CurveBand[];
+  groupDiagrams: Array<{ group: string; diagrams: DiagramJson[] }>;
+  /** Rows of stats.tsv, when statistics were run. */
+  stats: Table | null;
+  /** Rows of diagram-tests.tsv, when statistics were run. */
+  diagramTests: Table | null;
+  /** A 2-D map of subjects from diagram distances. */
+  embedding: Array<{
+    subject: string;
+    group: string | null;
+    x: number;
+    y: number;
+    method: 'mds' | 'umap';
+  }> | null;
+}
+
+export interface SubjectResult {
+  id: string;
+  group: string | null;
+  n: number;
+  /** The subject's matrix as read, row-major, for the heatmap. */
+  matrix: number[];
+  diagrams: DiagramJson[];
+  representatives: Array<{
+    birth: number;
+    death: number | null;
+    edges: Array<[number, number]>;
+    nodes: number[];
+  }>;
+  /** Node measure name → one value per node. */
+  nodeScores: Record<string, number[]>;
+}
+
+export interface OpenCohortRequest {
+  dir: string;
+  participants?: string;
+  nodes?: string;
+}
+
+export interface StartRunRequest {
+  cohort: OpenCohortRequest;
+  settings: AnalysisSettings;
+  stats: StatsSettings;
+  /** Where tables are written; null keeps results in the service only. */
+  outDir: string | null;
+}
+
+/**
+ * What every door calls. The service implements it in the main process; the Electron preload
+ * and the browser client expose the same methods to the renderer.
+ */
+export interface LoopwiseApi {
+  openCohort(req: OpenCohortRequest): Promise<CohortReport>;
+  defaultSettings(): Promise<{ settings: AnalysisSettings; stats: StatsSettings }>;
+  startRun(req: StartRunRequest): Promise<{ runId: string }>;
+  cancelRun(runId: string): Promise<void>;
+  /** Registers a listener for progress events; returns a function that unregisters it. */
+  onProgress(listener: (e: ProgressEvent) => void): () => void;
+  runSummary(runId: string): Promise<RunSummary | null>;
+  cohortResults(runId: string): Promise<CohortResults | null>;
+  subjectResult(runId: string, subjectId: string): Promise<SubjectResult | null>;
+  /** Writes the tables of a finished run to outDir; refuses to overwrite existing files unless overwrite. */
+  exportRun(runId: string, outDir: string, overwrite: boolean): Promise<{ files: string[] }>;
+}
