@@ -1,0 +1,64 @@
+/**
+ * The evaluation grid shared by every subject of a cohort, so that curves (Betti, Euler,
+ * landscapes) of different subjects are vectors over the same filtration values and can be
+ * averaged and compared point by point.
+ */
+import type { PersistenceResult } from '../types.ts';
+
+/**
+ * `points` evenly spaced values from `min` to `max`, both included (a linspace).
+ *
+ *   grid(0, 1, 5) → [0, 0.25, 0.5, 0.75, 1]
+ */
+export function grid(min: number, max: number, points: number): Float64Array {
+  if (!Number.isFinite(min) || !Number.isFinite(max) || !(max >= min)) {
+    throw new RangeError(`grid range must be finite with min ≤ max, got [${min}, ${max}]`);
+  }
+  if (!Number.isInteger(points) || points < 1) {
+    throw new RangeError(`grid needs a whole number of points ≥ 1, got ${points}`);
+  }
+  const out = new Float64Array(points);
+  if (points === 1) {
+    out[0] = min;
+    return out;
+  }
+  const step = (max - min) / (points - 1);
+  for (let i = 0; i < points; i++) out[i] = min + i * step;
+  out[points - 1] = max; // exact right end despite rounding
+  return out;
+}
+
+/** Largest finite filtration value a result reaches: its threshold, or its largest finite death/birth when uncapped over a disconnected graph. */
+export function filtrationEnd(r: PersistenceResult): number {
+  if (Number.isFinite(r.threshold)) return r.threshold;
+  let end = 0;
+  for (const dg of r.diagrams) {
+    for (const iv of dg) {
+      if (iv.birth > end) end = iv.birth;
+      if (Number.isFinite(iv.death) && iv.death > end) end = iv.death;
+    }
+  }
+  for (const ev of r.mergeTree) if (ev.value > end) end = ev.value;
+  return end;
+}
+
+/**
+ * The cohort's filtration range, sampled at `points` values: from the smallest edge value of any
+ * subject (the first merge of its H0 merge tree; below it every curve is constant) to the largest
+ * filtration end of any subject (its threshold). Subjects whose threshold lies below the grid's
+ * end keep their last state beyond it, which is exact for the uncapped (enclosing-radius)
+ * filtration and is "the complex frozen at the cap" for capped ones.
+ *
+ *   cohortGrid([resultA, resultB], 100) → grid(min first-edge, max threshold, 100)
+ */
+export function cohortGrid(results: PersistenceResult[], points = 100): Float64Array {
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (const r of results) {
+    if (r.mergeTree.length > 0) lo = Math.min(lo, r.mergeTree[0].value);
+    hi = Math.max(hi, filtrationEnd(r));
+  }
+  if (!Number.isFinite(hi)) throw new RangeError('cohort grid: no subject results to span');
+  if (!Number.isFinite(lo) || lo > hi) lo = 0;
+  return grid(lo, hi, points);
+}
