@@ -1,0 +1,290 @@
+/**
+ * Writes the bundled demo cohorts, byte for byte the same on every run:
+ *
+ *   npx tsx sample-data/generate.ts [outDir]      (outDir defaults to sample-data/)
+ *
+ * rhythm-study/        an invented 8-week rhythm-training study: 40 subjects (training 20, waitlist 20),
+ *                      60 regions in 6 networks, one sample correlation matrix per subject.
+ * rhythm-study-messy/  a small cohort with deliberately broken files, for the quality-control view.
+ *
+ * Every matrix is the sample correlation of a latent-factor block model (electron/engine/generator);
+ * the training group carries a planted effect: four nodes each bridge to a second network,
+ * forming a ring of cross-network coupling (see sample-data/README.md). Invented demo data.
+ */
+import { mkdirSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { createRng, shuffle, type Rng } from '../electron/engine/random.ts';
+import {
+  factorModel,
+  gaussianSource,
+  sampleCorrelation,
+  withPlantedEffect,
+  type BlockModelSpec,
+} from '../electron/engine/generator/index.ts';
+import type { SquareMatrix } from '../electron/engine/types.ts';
+
+export const STUDY = 'rhythm-study';
+export const MESSY = 'rhythm-study-messy';
+const SEED = 20260508;
+const TIME_POINTS = 240; // 8 minutes at a 2-s repetition time
+
+interface Network {
+  code: string;
+  name: string;
+  /** Super-module: 0 sensory, 1 association. */
+  family: number;
+  /** Made-up centroid of the right-hemisphere half (x > 0), in millimetres. */
+  centre: [number, number, number];
+}
+
+export const NETWORKS: Network[] = [
+  { code: 'VIS', name: 'visual', family: 0, centre: [22, -84, 4] },
+  { code: 'SMN', name: 'somatomotor', family: 0, centre: [36, -22, 56] },
+  { code: 'AUD', name: 'auditory', family: 0, centre: [52, -20, 8] },
+  { code: 'DMN', name: 'default', family: 1, centre: [10, -50, 30] },
+  { code: 'FPN', name: 'frontoparietal', family: 1, centre: [42, 28, 32] },
+  { code: 'SAL', name: 'salience', family: 1, centre: [34, 16, 2] },
+];
+const PER_HEMISPHERE = 5;
+
+export interface NodeRow {
+  label: string;
+  network: string;
+  module: number;
+  x: number;
+  y: number;
+  z: number;
+}
+
+/** 60 regions: per network 5 left then 5 right, labelled L_AUD_1 … R_AUD_5. */
+export function nodeTable(): NodeRow[] {
+  const rng = createRng(SEED ^ 0x5a5a);
+  const jitter = (): number => Math.round((rng.next() * 2 - 1) * 9);
+  const rows: NodeRow[] = [];
+  NETWORKS.forEach((net, module) => {
+    for (const side of ['L', 'R']) {
+      for (let k = 1; k <= PER_HEMISPHERE; k++) {
+        const sign = side === 'L' ? -1 : 1;
+        rows.push({
+          label: `${side}_${net.code}_${k}`,
+          network: net.name,
+          module,
+          x: sign * Math.max(2, net.centre[0] + jitter()),
+          y: net.centre[1] + jitter(),
+          z: net.centre[2] + jitter(),
+        });
+      }
+    }
+  });
+  return rows;
+}
+
+/** The planted ring: each node bridges to the next network, auditory → somatomotor → salience → frontoparietal → auditory. */
+export const PLANTED: Array<{ label: string; target: string }> = [
+  { label: 'L_AUD_2', target: 'somatomotor' },
+  { label: 'R_SMN_3', target: 'salience' },
+  { label: 'L_SAL_1', target: 'frontoparietal' },
+  { label: 'R_FPN_4', target: 'auditory' },
+];
+export const PLANTED_GROUP = 'training';
+/** Mean planted share π (module variance moved to the target network) in the training group. */
+export const PLANTED_SHARE = 0.3;
+
+/** The block model everyone shares; a subject varies it slightly (see subjectSpec). */
+export const BASE = { within: 0.5, nested: 0.18, between: 0.1 };
+
+export interface Participant {
+  id: string;
+  group: 'training' | 'waitlist';
+  age: number;
+  sex: 'F' | 'M';
+  fd_mean: number | null;
+}
+
+function participants(count: number, rng: Rng): Participant[] {
+  const gauss = gaussianSource(rng);
+  const groups: Array<Participant['group']> = [];
+  for (let i = 0; i < count; i++) groups.push(i < count / 2 ? 'training' : 'waitlist');
+  shuffle(groups, rng);
+  return groups.map((group, i) => ({
+    id: `sub-${String(i + 1).padStart(2, '0')}`,
+    group,
+    age: 19 + rng.int(17),
+    sex: rng.next() < 0.5 ? 'F' : 'M',
+    fd_mean: Math.round((0.07 + 0.05 * Math.abs(gauss())) * 1000) / 1000,
+  }));
+}
+
+/** A subject's model: jittered block correlations, motion (fd) adding a little global coupling, and the planted effect in the training group. */
+export function subjectSpec(p: Participant, nodes: NodeRow[], rng: Rng): BlockModelSpec {
+  const gauss = gaussianSource(rng);
+  const clamp = (x: number, lo: number, hi: number): number => Math.min(hi, Math.max(lo, x));
+  const motion = 0.6 * ((p.fd_mean ?? 0.1) - 0.1);
+  const between = clamp(BASE.between + 0.02 * gauss() + motion, 0.02, 0.2);
+  const nested = clamp(BASE.nested + 0.02 * gauss() + motion, between, 0.3);
+  const within = clamp(BASE.within + 0.03 * gauss(), nested + 0.15, 0.7);
+  let spec: BlockModelSpec = {
+    modules: nodes.map((r) => r.module),
+    within,
+    between,
+    nesting: { superOf: NETWORKS.map((n) => n.family), correlation: nested },
+    // An overlapping module in everyone: a default-network node shares a fifth of its module variance with frontoparietal.
+    overlaps: [{ node: indexOf(nodes, 'R_DMN_2'), module: moduleOf('frontoparietal'), share: 0.2 }],
+  };
+  if (p.group === PLANTED_GROUP) {
+    spec = withPlantedEffect(spec, {
+      kind: 'bridge',
+      nodes: PLANTED.map((q) => indexOf(nodes, q.label)),
+      targets: PLANTED.map((q) => moduleOf(q.target)),
+      share: clamp(PLANTED_SHARE + 0.05 * gauss(), 0.15, 0.45),
+    });
+  }
+  return spec;
+}
+
+function indexOf(nodes: NodeRow[], label: string): number {
+  const i = nodes.findIndex((r) => r.label === label);
+  if (i < 0) throw new Error(`no node labelled ${label}`);
+  return i;
+}
+
+function moduleOf(network: string): number {
+  const m = NETWORKS.findIndex((n) => n.name === network);
+  if (m < 0) throw new Error(`no network named ${network}`);
+  return m;
+}
+
+export interface Study {
+  nodes: NodeRow[];
+  participants: Participant[];
+  matrices: SquareMatrix[];
+}
+
+/** The main demo study, in memory. Subject k's draws come from its own seed, so one subject can be regenerated alone. */
+export function buildStudy(count = 40): Study {
+  const nodes = nodeTable();
+  const people = participants(count, createRng(SEED));
+  const matrices = people.map((p, k) => {
+    const rng = createRng(SEED + 1000 + k);
+    return sampleCorrelation(factorModel(subjectSpec(p, nodes, rng)), TIME_POINTS, rng);
+  });
+  return { nodes, participants: people, matrices };
+}
+
+/** Six significant digits, without trailing zeros. */
+export function formatValue(x: number): string {
+  if (Number.isNaN(x)) return 'NaN';
+  return String(Number(x.toPrecision(6)));
+}
+
+export function matrixTsv(m: SquareMatrix): string {
+  const lines: string[] = [];
+  for (let i = 0; i < m.n; i++) {
+    const row: string[] = [];
+    for (let j = 0; j < m.n; j++) row.push(formatValue(m.values[i * m.n + j]));
+    lines.push(row.join('\t'));
+  }
+  return lines.join('\n') + '\n';
+}
+
+function participantsTsv(people: Participant[]): string {
+  const lines = ['participant_id\tgroup\tage\tsex\tfd_mean'];
+  for (const p of people) {
+    lines.push([p.id, p.group, p.age, p.sex, p.fd_mean === null ? 'n/a' : p.fd_mean.toFixed(3)].join('\t'));
+  }
+  return lines.join('\n') + '\n';
+}
+
+function nodesTsv(nodes: NodeRow[]): string {
+  const lines = ['label\tnetwork\tx\ty\tz'];
+  for (const r of nodes) lines.push([r.label, r.network, r.x, r.y, r.z].join('\t'));
+  return lines.join('\n') + '\n';
+}
+
+/** A copy of an n × n matrix without the listed rows and columns. */
+function dropRegions(m: SquareMatrix, drop: number[]): SquareMatrix {
+  const keep: number[] = [];
+  for (let i = 0; i < m.n; i++) if (!drop.includes(i)) keep.push(i);
+  const n = keep.length;
+  const values = new Float64Array(n * n);
+  keep.forEach((i, a) => keep.forEach((j, b) => (values[a * n + b] = m.values[i * m.n + j])));
+  return { n, values };
+}
+
+/**
+ * The messy companion: eight listed participants and nine matrix files, each problem planted on purpose
+ * (sample-data/README.md lists them). The clean subjects come from the same model as the main study.
+ */
+export function buildMessy(): Map<string, string | Uint8Array> {
+  const nodes = nodeTable();
+  const people = participants(9, createRng(SEED + 7));
+  const files = new Map<string, string | Uint8Array>();
+  const matrix = (k: number): SquareMatrix => {
+    const rng = createRng(SEED + 5000 + k);
+    return sampleCorrelation(factorModel(subjectSpec(people[k], nodes, rng)), TIME_POINTS, rng);
+  };
+  const listed = people.slice(0, 8);
+  listed[2] = { ...listed[2], fd_mean: null }; // a missing covariate value
+  files.set('participants.tsv', participantsTsv(listed));
+  files.set('nodes.tsv', nodesTsv(nodes));
+  for (const k of [0, 1, 2]) files.set(`${people[k].id}_conn.tsv`, matrixTsv(matrix(k)));
+
+  // sub-04: asymmetric — one cell disagrees with its mirror image.
+  const asym = matrix(3);
+  asym.values[4 * asym.n + 11] += 0.25;
+  files.set(`${people[3].id}_conn.tsv`, matrixTsv(asym));
+
+  // sub-05: a dead region — row and column 17 (R_SMN_2) are NaN.
+  const dead = matrix(4);
+  for (let j = 0; j < dead.n; j++) {
+    dead.values[16 * dead.n + j] = NaN;
+    dead.values[j * dead.n + 16] = NaN;
+  }
+  files.set(`${people[4].id}_conn.tsv`, matrixTsv(dead));
+
+  // sub-06: wrong size — two regions missing (58 × 58).
+  files.set(`${people[5].id}_conn.tsv`, matrixTsv(dropRegions(matrix(5), [58, 59])));
+
+  // sub-07: listed in participants.tsv, but no matrix file.
+
+  // sub-08: unreadable — binary bytes, not a table of numbers.
+  const rng = createRng(SEED + 8);
+  const junk = new Uint8Array(600);
+  for (let b = 0; b < junk.length; b++) junk[b] = rng.int(256);
+  junk.set([0x1f, 0x8b, 0x08, 0x00], 0); // looks like the start of a gzip stream that never finishes
+  files.set(`${people[7].id}_conn.tsv`, junk);
+
+  // sub-09: a good matrix whose subject is missing from participants.tsv.
+  files.set(`${people[8].id}_conn.tsv`, matrixTsv(matrix(8)));
+  return files;
+}
+
+/** Every file of both cohorts, path relative to the sample-data folder → content. */
+export function sampleFiles(): Map<string, string | Uint8Array> {
+  const files = new Map<string, string | Uint8Array>();
+  const study = buildStudy();
+  files.set(`${STUDY}/participants.tsv`, participantsTsv(study.participants));
+  files.set(`${STUDY}/nodes.tsv`, nodesTsv(study.nodes));
+  study.participants.forEach((p, k) => files.set(`${STUDY}/${p.id}_conn.tsv`, matrixTsv(study.matrices[k])));
+  for (const [name, content] of buildMessy()) files.set(`${MESSY}/${name}`, content);
+  return files;
+}
+
+/** Writes every sample file under outDir (only these files; nothing else there is touched). */
+export function writeSampleData(outDir: string): string[] {
+  const written: string[] = [];
+  for (const [rel, content] of sampleFiles()) {
+    const path = join(outDir, rel);
+    mkdirSync(join(path, '..'), { recursive: true });
+    writeFileSync(path, content);
+    written.push(rel);
+  }
+  return written;
+}
+
+if (process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1]) {
+  const outDir = process.argv[2] ?? join(fileURLToPath(import.meta.url), '..');
+  const written = writeSampleData(outDir);
+  console.log(`wrote ${written.length} files under ${outDir}`);
+}
