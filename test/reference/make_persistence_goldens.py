@@ -193,7 +193,7 @@ def canonical(diagrams):
 
 
 def cases():
-    """(name, description, matrix, maxDim, threshold quantile or None)."""
+    """(name, description, matrix, maxDim, threshold: a quantile, 'mid', 'level' or None)."""
     rng = np.random.default_rng(20261202)
     out = []
 
@@ -248,6 +248,15 @@ def cases():
     add('ties-grid-n16', '4 × 4 grid in the plane, Manhattan distances (integer ties, square loops)',
         np.abs(np.subtract.outer(np.arange(16) // 4, np.arange(16) // 4))
         + np.abs(np.subtract.outer(np.arange(16) % 4, np.arange(16) % 4)).astype(float), 2)
+
+    # Caps at the edges of the range (a second stream, so the cases above stay as they are).
+    rng2 = np.random.default_rng(20261203)
+    add('euclid-3d-n30-cap-above-radius', '30 random points in the unit cube, capped halfway between the '
+        'enclosing radius and the largest distance (the cap changes nothing)', euclidean(rng2, 30, 3), 2, 'mid')
+    add('nonmetric-n20-cap-at-max', '20 nodes, uniform distances, capped exactly at the largest distance',
+        nonmetric(rng2, 20), 2, 1.0)
+    add('ties-nonmetric-n25-cap-on-level', '25 nodes, distances on 6 levels, capped exactly at the 3rd level '
+        '(many edges tie with the cap)', quantised(nonmetric(rng2, 25), 6), 2, 'level')
     return out
 
 
@@ -260,7 +269,14 @@ def main():
     for name, desc, d, max_dim, q in cases():
         n = d.shape[0]
         lower = lower_triangle(d)
-        threshold = None if q is None else quantile_threshold(lower, q)
+        if q == 'mid':
+            radius = full_from_lower(lower, n).max(axis=1).min()
+            threshold = six((radius + max(lower)) / 2)
+            assert radius < threshold < max(lower)
+        elif q == 'level':
+            threshold = sorted(set(lower))[2]
+        else:
+            threshold = None if q is None else quantile_threshold(lower, q)
         path = os.path.join(OUT, name)
         rdg, cmd = run_ripser(lower, n, max_dim, threshold, path)
         gdg = run_gudhi(lower, n, max_dim, threshold)
