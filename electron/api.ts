@@ -128,6 +128,17 @@ export interface RunSummary {
   reused: number;
   failures: Array<{ subject: string; reason: string }>;
   outDir: string | null;
+  /** Subjects the cohort check excluded before analysis, with the reason. */
+  excluded?: Array<{ subject: string; reason: string }>;
+  /** Subjects analysed in this run (computed + reused). */
+  analysed?: number;
+  /** Peak resident memory of the process during the run. */
+  peakRssBytes?: number;
+  cacheDir?: string;
+  cacheBytes?: number;
+  /** Files written to outDir. */
+  files?: string[];
+  elapsedMs?: number;
 }
 
 /** Provenance carried by every result and export. */
@@ -140,6 +151,17 @@ export interface Provenance {
   stats?: StatsSettings;
   /** Subject id → SHA-256 of the matrix bytes as read. */
   inputHashes: Record<string, string>;
+  /** The cohort folder the subjects were read from. */
+  cohortRoot?: string;
+  /** Each subject's input file (relative to cohortRoot) with the SHA-256 of the file's bytes. */
+  inputFiles?: Array<{
+    subject: string;
+    file: string;
+    sha256: string | null;
+    variable?: string;
+    stackIndex?: number;
+  }>;
+  counts?: { subjects: number; analysed: number; failed: number; excluded: number };
 }
 
 // ---------- Results and the service's methods ----------
@@ -215,6 +237,15 @@ export interface StartRunRequest {
   stats: StatsSettings;
   /** Where tables are written; null keeps results in the service only. */
   outDir: string | null;
+  /** Replace Loopwise's tables in an outDir that already holds files (other files are never touched). */
+  force?: boolean;
+  /** The filtration cache; default outDir/.loopwise-cache, or the service's own folder when outDir is null. */
+  cacheDir?: string | null;
+  /** Compute only share `index` (1-based) of `count`: subjects whose position ≡ index − 1 (mod count). */
+  shard?: { index: number; count: number } | null;
+  /** Worker threads; default the number of available cores. */
+  workers?: number;
+  tableFormat?: 'tsv' | 'csv';
 }
 
 /**

@@ -2,7 +2,9 @@
  * The `loopwise` command-line door. Each command lives in electron/cli/<name>.ts and returns
  * an exit code: 0 success, 1 the job failed (e.g. no usable subject), 2 a usage or input error.
  */
+import { analyzeCommand } from './cli/analyze.ts';
 import { diagramCommand } from './cli/diagram.ts';
+import { mergeCommand } from './cli/merge.ts';
 
 export interface CliIO {
   out: (text: string) => void;
@@ -16,6 +18,8 @@ const COMMANDS: Record<string, { run: Command; summary: string }> = {
     run: diagramCommand,
     summary: 'persistence diagrams (and cycle representatives) of matrix files, as JSON',
   },
+  analyze: { run: analyzeCommand, summary: 'persistence of every subject of a cohort, cached and resumable' },
+  merge: { run: mergeCommand, summary: 'combine the shards of a cohort run (analyze --shard K/M)' },
 };
 
 export const USAGE = `usage: loopwise <command> [options]

@@ -1,0 +1,285 @@
+/**
+ * `loopwise analyze COHORT_DIR --out DIR [options]`: a thin door over the service. Persistence
+ * diagrams of every subject on a worker pool, committed one by one to a cache so an interrupted
+ * run resumes; then the cohort's tables. Progress goes to stderr (a bar on a terminal, plain
+ * lines otherwise); Ctrl-C cancels cleanly. Exit 0 when at least one subject was analysed, 1 when
+ * none, 2 on a usage error or a refused output folder, 130 when cancelled.
+ */
+import { availableParallelism } from 'node:os';
+import type { AnalysisSettings, ProgressEvent, RunSummary, StartRunRequest, StatsSettings } from '../api.ts';
+import type { CliIO } from '../cli.ts';
+import { DEFAULT_TRANSFORM, TRANSFORMS_FOR } from '../engine/transform.ts';
+import type { CapSetting } from '../engine/types.ts';
+import { createLoopwiseService } from '../service/service.ts';
+import { defaultAnalysisSettings, defaultStatsSettings } from '../service/settings.ts';
+import { UsageError, choiceOption, numberOption, parseArgs } from './args.ts';
+
+export const ANALYZE_HELP = `usage: loopwise analyze COHORT_DIR --out DIR [options]
+
+Computes the persistence diagrams of every subject of the cohort and writes, into DIR:
+  intervals.tsv    participant_id, dimension, birth, death, nodes (an H1 cycle's nodes, 0-based,
+                   space-separated; n/a otherwise); death 'inf' for a class that never dies
+  subjects.tsv     each subject's status (analysed, failed, excluded) and reason
+  provenance.json  software and engine version, every setting, input files with SHA-256, time
+Finished subjects are cached (DIR/.loopwise-cache, or --cache): a run that is interrupted resumes
+where it stopped, and a re-run that changes only statistics settings recomputes nothing.
+
+options:
+  --out DIR             output folder (refused if it holds files, unless --force)
+  --participants FILE   participants table (default COHORT_DIR/participants.tsv)
+  --input correlation|weight|distance   what the matrices hold (default correlation)
+  --transform NAME      correlation: one-minus (default), one-minus-abs, sqrt
+                        weight: inverse (default), neg-log; distance: identity
+  --max-dim 1|2         highest homology dimension (default 1)
+  --cap-distance X      stop the filtration at distance X
+  --cap-density P       stop where a fraction P of all edges is present (0 < P ≤ 1)
+  --no-representatives  skip H1 cycle representatives (faster)
+  --drop-regions LIST   0-based region indices to leave out of every subject, e.g. 3,17
+  --group COLUMN        participants column that defines the groups (statistics)
+  --covariates LIST     participants columns to adjust for, comma-separated (statistics)
+  --permutations N      permutations of the group tests (default 5000)
+  --seed S              seed of the permutations (default 1)
+  --workers K           worker threads (default: the number of cores, here ${availableParallelism()})
+  --shard K/M           compute only share K of M (subjects K, K+M, K+2M, …); then 'loopwise merge DIR'
+  --cache DIR           cache folder (default OUT/.loopwise-cache)
+  --force               replace Loopwise's tables in a non-empty DIR (other files are left alone)
+  --csv                 write .csv instead of .tsv
+`;
+
+const INPUTS = ['correlation', 'weight', 'distance'] as const;
+const ALL_TRANSFORMS = ['one-minus', 'one-minus-abs', 'sqrt', 'inverse', 'neg-log', 'identity'] as const;
+
+function intList(s: string | undefined, name: string): number[] {
+  if (s === undefined || s.trim() === '') return [];
+  return s.split(',').map((t) => {
+    const x = Number(t.trim());
+    if (!Number.isInteger(x) || x < 0) throw new UsageError(`--${name} must list integers ≥ 0, got '${t}'`);
+    return x;
+  });
+}
+
+export function parseAnalyzeArgs(args: string[]): (StartRunRequest & { outDir: string }) | null {
+  const p = parseArgs(args, {
+    values: [
+      'out',
+      'participants',
+      'input',
+      'transform',
+      'max-dim',
+      'cap-distance',
+      'cap-density',
+      'drop-regions',
+      'group',
+      'covariates',
+      'permutations',
+      'seed',
+      'workers',
+      'shard',
+      'cache',
+    ],
+    flags: ['no-representatives', 'force', 'csv', 'help'],
+  });
+  if (p.flags.has('help')) return null;
+  if (p.positionals.length !== 1)
+    throw new UsageError(p.positionals.length === 0 ? 'no COHORT_DIR given' : 'give exactly one COHORT_DIR');
+  const out = p.values.get('out');
+  if (!out) throw new UsageError('--out DIR is required');
+  const input = choiceOption(p, 'input', INPUTS) ?? 'correlation';
+  const transform = choiceOption(p, 'transform', ALL_TRANSFORMS) ?? DEFAULT_TRANSFORM[input];
+  if (!TRANSFORMS_FOR[input].includes(transform))
+    throw new UsageError(
+      `--transform ${transform} does not apply to --input ${input} (use ${TRANSFORMS_FOR[input].join(', ')})`,
+    );
+  const maxDim = (numberOption(p, 'max-dim', (x) => x === 1 || x === 2, '1 or 2') ?? 1) as 1 | 2;
+  const capDistance = numberOption(p, 'cap-distance', (x) => x >= 0, 'a distance ≥ 0');
+  const capDensity = numberOption(p, 'cap-density', (x) => x > 0 && x <= 1, 'a fraction in (0, 1]');
+  if (capDistance !== undefined && capDensity !== undefined)
+    throw new UsageError('give --cap-distance or --cap-density, not both');
+  const cap: CapSetting =
+    capDistance !== undefined
+      ? { kind: 'distance', value: capDistance }
+      : capDensity !== undefined
+        ? { kind: 'density', value: capDensity }
+        : { kind: 'none' };
+  const workers = numberOption(p, 'workers', (x) => Number.isInteger(x) && x >= 1, 'an integer ≥ 1');
+  let shard: { index: number; count: number } | null = null;
+  const shardText = p.values.get('shard');
+  if (shardText !== undefined) {
+    const m = /^(\d+)\/(\d+)$/.exec(shardText);
+    const index = m ? Number(m[1]) : NaN;
+    const count = m ? Number(m[2]) : NaN;
+    if (!m || count < 1 || index < 1 || index > count)
+      throw new UsageError(`--shard must be K/M with 1 ≤ K ≤ M, got '${shardText}'`);
+    shard = { index, count };
+  }
+  const settings: AnalysisSettings = {
+    ...defaultAnalysisSettings(),
+    input,
+    transform,
+    maxDim,
+    cap,
+    representatives: !p.flags.has('no-representatives'),
+    dropRegions: intList(p.values.get('drop-regions'), 'drop-regions'),
+  };
+  const stats: StatsSettings = {
+    ...defaultStatsSettings(),
+    groupColumn: p.values.get('group') ?? null,
+    covariates: (p.values.get('covariates') ?? '')
+      .split(',')
+      .map((s) => s.trim())
+      .filter((s) => s !== ''),
+  };
+  const permutations = numberOption(
+    p,
+    'permutations',
+    (x) => Number.isInteger(x) && x >= 0,
+    'an integer ≥ 0',
+  );
+  if (permutations !== undefined) stats.permutations = permutations;
+  const seed = numberOption(p, 'seed', (x) => Number.isInteger(x), 'an integer');
+  if (seed !== undefined) stats.seed = seed;
+  const participants = p.values.get('participants');
+  return {
+    cohort: { dir: p.positionals[0], ...(participants !== undefined ? { participants } : {}) },
+    settings,
+    stats,
+    outDir: out,
+    force: p.flags.has('force'),
+    cacheDir: p.values.get('cache') ?? null,
+    shard,
+    ...(workers !== undefined ? { workers } : {}),
+    tableFormat: p.flags.has('csv') ? 'csv' : 'tsv',
+  };
+}
+
+export function formatDuration(ms: number): string {
+  const s = Math.round(ms / 1000);
+  const h = Math.floor(s / 3600);
+  const m = Math.floor((s % 3600) / 60);
+  const sec = String(s % 60).padStart(2, '0');
+  return h > 0 ? `${h}:${String(m).padStart(2, '0')}:${sec}` : `${m}:${sec}`;
+}
+
+export function formatBytes(b: number): string {
+  if (b < 1024) return `${b} B`;
+  if (b < 1024 ** 2) return `${(b / 1024).toFixed(1)} KiB`;
+  if (b < 1024 ** 3) return `${(b / 1024 ** 2).toFixed(1)} MiB`;
+  return `${(b / 1024 ** 3).toFixed(2)} GiB`;
+}
+
+/** One progress line, without the bar. */
+export function progressText(e: ProgressEvent): string {
+  const parts = [`${e.done}/${e.total} subjects`];
+  const extra: string[] = [];
+  if (e.reused > 0) extra.push(`reused ${e.reused}`);
+  if (e.failures.length > 0) extra.push(`failed ${e.failures.length}`);
+  if (extra.length) parts.push(`(${extra.join(', ')})`);
+  if (e.currentSubject) parts.push(e.currentSubject);
+  parts.push(`${formatDuration(e.elapsedMs)} elapsed`);
+  if (e.etaMs !== null && e.done < e.total) parts.push(`ETA ${formatDuration(e.etaMs)}`);
+  return parts.join(' ');
+}
+
+/** Shows progress on stderr: a redrawn bar on a terminal, plain lines otherwise. */
+export function progressPrinter(
+  io: CliIO,
+  tty: boolean,
+  prefix: string,
+): { show(e: ProgressEvent): void; end(): void } {
+  let last = 0;
+  let drawn = false;
+  return {
+    show(e) {
+      if (e.phase !== 'filtrations') return;
+      if (!tty) {
+        io.err(`${prefix}: ${progressText(e)}\n`);
+        return;
+      }
+      const now = Date.now();
+      if (now - last < 100 && e.done < e.total) return;
+      last = now;
+      const width = 24;
+      const filled = e.total > 0 ? Math.round((width * e.done) / e.total) : width;
+      io.err(`\r\x1b[2K[${'#'.repeat(filled)}${'.'.repeat(width - filled)}] ${progressText(e)}`);
+      drawn = true;
+    },
+    end() {
+      if (drawn) io.err('\n');
+      drawn = false;
+    },
+  };
+}
+
+export function printSummary(io: CliIO, prefix: string, s: RunSummary): void {
+  const excluded = s.excluded ?? [];
+  const lines = [
+    `${prefix}: ${s.status === 'done' ? 'finished' : s.status}: ${s.analysed ?? s.computed + s.reused} analysed ` +
+      `(${s.computed} computed, ${s.reused} reused from the cache), ${s.failures.length} failed, ${excluded.length} excluded`,
+  ];
+  for (const f of s.failures) lines.push(`  failed   ${f.subject || '(run)'}: ${f.reason}`);
+  for (const f of excluded) lines.push(`  excluded ${f.subject}: ${f.reason}`);
+  if (s.cacheDir) lines.push(`  cache    ${s.cacheDir} (${formatBytes(s.cacheBytes ?? 0)}; safe to delete)`);
+  if (s.outDir && s.files && s.files.length > 0) lines.push(`  tables   ${s.outDir}: ${s.files.join(', ')}`);
+  if (s.elapsedMs !== undefined) lines.push(`  time     ${formatDuration(s.elapsedMs)}`);
+  if (s.peakRssBytes !== undefined) lines.push(`  memory   peak ${formatBytes(s.peakRssBytes)} resident`);
+  io.err(lines.join('\n') + '\n');
+}
+
+export function exitCodeOf(s: RunSummary): number {
+  if (s.status === 'cancelled') return 130;
+  return s.status === 'done' && (s.analysed ?? s.computed + s.reused) > 0 ? 0 : 1;
+}
+
+export async function analyzeCommand(args: string[], io: CliIO): Promise<number> {
+  const prefix = 'loopwise analyze';
+  let req;
+  try {
+    req = parseAnalyzeArgs(args);
+  } catch (e) {
+    if (e instanceof UsageError) {
+      io.err(`${prefix}: ${e.message}\n${ANALYZE_HELP}`);
+      return 2;
+    }
+    throw e;
+  }
+  if (!req) {
+    io.out(ANALYZE_HELP);
+    return 0;
+  }
+  const service = createLoopwiseService();
+  const printer = progressPrinter(io, process.stderr.isTTY === true, prefix);
+  const unlisten = service.onProgress((e) => printer.show(e));
+  let runId: string;
+  try {
+    ({ runId } = await service.startRun(req));
+  } catch (e) {
+    unlisten();
+    io.err(`${prefix}: ${e instanceof Error ? e.message : String(e)}\n`);
+    // A refused output folder, a cohort that cannot be opened, invalid settings: all input errors.
+    return 2;
+  }
+  let interrupts = 0;
+  const onSigint = (): void => {
+    interrupts++;
+    if (interrupts > 1) process.exit(130);
+    printer.end();
+    io.err(`${prefix}: cancelling (Ctrl-C again to quit at once); finished subjects stay in the cache\n`);
+    void service.cancelRun(runId);
+  };
+  process.on('SIGINT', onSigint);
+  try {
+    const summary = await service.waitForRun(runId);
+    printer.end();
+    if (summary.status === 'cancelled')
+      io.err(`${prefix}: cancelled; run the same command again to resume from the cache\n`);
+    if (req.shard && summary.status === 'done')
+      io.err(
+        `${prefix}: shard ${req.shard.index}/${req.shard.count} done; when all shards are, run: loopwise merge ${req.outDir}\n`,
+      );
+    printSummary(io, prefix, summary);
+    return exitCodeOf(summary);
+  } finally {
+    process.off('SIGINT', onSigint);
+    unlisten();
+  }
+}

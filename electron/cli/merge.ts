@@ -1,0 +1,53 @@
+/**
+ * `loopwise merge DIR`: combines the shards written by `loopwise analyze … --shard K/M --out DIR`
+ * into the same tables one unsharded run writes (byte for byte, apart from provenance.createdAt),
+ * then runs the later stages (statistics) on the whole cohort.
+ */
+import type { CliIO } from '../cli.ts';
+import { OutDirError, createLoopwiseService } from '../service/service.ts';
+import { UsageError, parseArgs } from './args.ts';
+import { exitCodeOf, printSummary } from './analyze.ts';
+
+export const MERGE_HELP = `usage: loopwise merge DIR [options]
+
+Combines the shard results in DIR (from 'loopwise analyze COHORT --out DIR --shard K/M', every K
+from 1 to M) into DIR's tables, as a single run writes them.
+
+options:
+  --cache DIR   the cache the shards wrote to, when it is not where they recorded it
+  --force       replace Loopwise's tables already in DIR (other files are left alone)
+  --csv         write .csv instead of .tsv
+`;
+
+export async function mergeCommand(args: string[], io: CliIO): Promise<number> {
+  const prefix = 'loopwise merge';
+  let p;
+  try {
+    p = parseArgs(args, { values: ['cache'], flags: ['force', 'csv', 'help'] });
+    if (p.flags.has('help')) {
+      io.out(MERGE_HELP);
+      return 0;
+    }
+    if (p.positionals.length !== 1) throw new UsageError('give exactly one DIR');
+  } catch (e) {
+    if (e instanceof UsageError) {
+      io.err(`${prefix}: ${e.message}\n${MERGE_HELP}`);
+      return 2;
+    }
+    throw e;
+  }
+  const service = createLoopwiseService();
+  try {
+    const cache = p.values.get('cache');
+    const summary = await service.mergeShards(p.positionals[0], {
+      force: p.flags.has('force'),
+      tableFormat: p.flags.has('csv') ? 'csv' : 'tsv',
+      ...(cache !== undefined ? { cacheDir: cache } : {}),
+    });
+    printSummary(io, prefix, summary);
+    return exitCodeOf(summary);
+  } catch (e) {
+    io.err(`${prefix}: ${e instanceof Error ? e.message : String(e)}\n`);
+    return e instanceof OutDirError ? 2 : 1;
+  }
+}

@@ -1,0 +1,91 @@
+/**
+ * The on-disk filtration cache: one JSON file per (matrix, filtration settings, ENGINE_VERSION),
+ * at <cache>/filtrations/<key[0..2]>/<key>.json, each committed atomically. It doubles as the
+ * run's commit log: a run killed at any moment resumes by reusing every entry present.
+ * The folder is the user's to inspect and delete; README.txt inside says so.
+ */
+import { mkdir, readFile, readdir, stat, writeFile } from 'node:fs/promises';
+import { join } from 'node:path';
+import { removeStaleTemps, writeFileAtomic } from './atomic.ts';
+
+/** One subject's filtration as cached. Node indices refer to the subject's matrix as read (before dropRegions). */
+export interface CachedFiltration {
+  format: 1;
+  key: string;
+  engineVersion: string;
+  matrixSha256: string;
+  /** Regions analysed (after dropRegions). */
+  n: number;
+  threshold: number | null;
+  thresholdSource: string;
+  /** diagrams[d] = [[birth, death | null], …], sorted by birth then death. */
+  diagrams: Array<Array<[number, number | null]>>;
+  /** Aligned with diagrams[1] when representatives were asked for, else null. */
+  representatives: Array<{ nodes: number[]; edges: Array<[number, number]> }> | null;
+}
+
+const README = `This folder holds Loopwise's cached filtrations: one file per subject matrix and
+filtration setting. A run reuses them instead of recomputing, and an interrupted run resumes
+from them. It is safe to delete this folder; the next run recomputes what it needs.
+`;
+
+export class FiltrationCache {
+  readonly dir: string;
+  constructor(dir: string) {
+    this.dir = dir;
+  }
+
+  private pathOf(key: string): string {
+    return join(this.dir, 'filtrations', key.slice(0, 2), `${key}.json`);
+  }
+
+  /** Creates the folder; removes temporaries of dead writers. */
+  async init(): Promise<void> {
+    await mkdir(join(this.dir, 'filtrations'), { recursive: true });
+    const readme = join(this.dir, 'README.txt');
+    await stat(readme).catch(() => writeFile(readme, README));
+    for (const sub of await readdir(join(this.dir, 'filtrations'))) {
+      await removeStaleTemps(join(this.dir, 'filtrations', sub));
+    }
+  }
+
+  /** The entry, or null when absent or unreadable (then it is simply recomputed). */
+  async get(key: string): Promise<CachedFiltration | null> {
+    let text: string;
+    try {
+      text = await readFile(this.pathOf(key), 'utf8');
+    } catch {
+      return null;
+    }
+    try {
+      const e = JSON.parse(text) as CachedFiltration;
+      return e.format === 1 && e.key === key && Array.isArray(e.diagrams) ? e : null;
+    } catch {
+      return null;
+    }
+  }
+
+  async put(entry: CachedFiltration): Promise<void> {
+    const file = this.pathOf(entry.key);
+    await mkdir(join(this.dir, 'filtrations', entry.key.slice(0, 2)), { recursive: true });
+    await writeFileAtomic(file, JSON.stringify(entry));
+  }
+
+  /** Total bytes and entries on disk. */
+  async size(): Promise<{ bytes: number; entries: number }> {
+    let bytes = 0;
+    let entries = 0;
+    const walk = async (d: string): Promise<void> => {
+      for (const e of await readdir(d, { withFileTypes: true }).catch(() => [])) {
+        const p = join(d, e.name);
+        if (e.isDirectory()) await walk(p);
+        else {
+          bytes += (await stat(p)).size;
+          if (e.name.endsWith('.json')) entries++;
+        }
+      }
+    };
+    await walk(this.dir);
+    return { bytes, entries };
+  }
+}

@@ -1,0 +1,56 @@
+/**
+ * The stages of a cohort run after the per-subject filtrations, as hooks the service calls in
+ * order once every filtration of the cohort is committed (after a single run, or after `merge`
+ * has combined the shards):
+ *
+ *   (1) filtrations per subject      — the service itself (pipeline.ts), cached and resumable
+ *   (2) group-level filtrations      — hooks.groupFiltrations (e.g. the mean matrix of each group)
+ *   (3) features + exports           — hooks.features (per-subject features, node scores, curves)
+ *   (4) statistics                   — hooks.statistics (group comparisons; uses ctx.stats)
+ *
+ * Each hook reads subjects through ctx (filtrations from the cache, matrices from the source, one
+ * at a time), writes its own tables with ctx.writeTable (atomic, and registered as Loopwise's own
+ * in the output folder), and returns the parts of CohortResults it fills. A hook may be slow:
+ * it reports progress with ctx.progress and stops early when ctx.cancelled() is true.
+ * Until a hook is given, the stage is skipped and its CohortResults fields stay empty.
+ */
+import type {
+  CohortReport,
+  CohortResults,
+  ProgressEvent,
+  StatsSettings,
+  SubjectEntry,
+  Table,
+} from '../api.ts';
+import type { SquareMatrix } from '../engine/types.ts';
+import type { CachedFiltration } from './cache.ts';
+import type { RunRecords, SubjectRecord, TableFormat } from './tables.ts';
+
+export interface StageContext {
+  runId: string;
+  run: RunRecords;
+  stats: StatsSettings;
+  /** The cohort as opened (subject covariates, nodes, findings). */
+  report: CohortReport;
+  /** The analysed subjects in cohort order. */
+  analysed: SubjectRecord[];
+  /** One subject's cached filtration. */
+  filtration(record: SubjectRecord): Promise<CachedFiltration>;
+  /** One subject's matrix as read (null when the cohort's files are not reachable, e.g. a merge elsewhere). */
+  matrix(entry: SubjectEntry): Promise<SquareMatrix | null>;
+  /** Writes a table into the output folder (when there is one) as NAME.tsv or NAME.csv; returns the file name or null. */
+  writeTable(name: string, table: Table): Promise<string | null>;
+  /** Writes a JSON file into the output folder (when there is one). */
+  writeJson(name: string, value: unknown): Promise<string | null>;
+  format: TableFormat;
+  progress(phase: ProgressEvent['phase'], done: number, total: number, message?: string): void;
+  cancelled(): boolean;
+}
+
+export type StageOutput = Partial<Omit<CohortResults, 'runId' | 'provenance'>>;
+
+export interface RunHooks {
+  groupFiltrations?(ctx: StageContext): Promise<StageOutput>;
+  features?(ctx: StageContext): Promise<StageOutput>;
+  statistics?(ctx: StageContext): Promise<StageOutput>;
+}

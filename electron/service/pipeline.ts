@@ -1,0 +1,205 @@
+/**
+ * Stage (1) of a cohort run: one filtration per subject, on the worker pool, each committed to the
+ * cache as soon as it is done. Matrices are loaded lazily, at most `window` subjects in flight at
+ * once (loaded, hashed, computing or being committed), so memory does not grow with the cohort.
+ * The outcome of each subject is placed by its index in the cohort order, so it does not depend
+ * on the number of workers or on which finished first.
+ */
+import { relative, sep } from 'node:path';
+import type { AnalysisSettings, CohortReport, SubjectEntry } from '../api.ts';
+import { FiltrationError } from '../workers/pool.ts';
+import type { WorkerPool } from '../workers/pool.ts';
+import type { PackedFiltration } from '../workers/filtration.ts';
+import type { CachedFiltration, FiltrationCache } from './cache.ts';
+import type { CohortSource } from './cohort-source.ts';
+import { sha256File, sha256Matrix } from './hash.ts';
+import { filtrationKey } from './settings.ts';
+import type { SubjectRecord } from './tables.ts';
+import { ENGINE_VERSION } from '../engine/version.ts';
+
+/** Counts of work actually done, for tests and the summary (never timings). */
+export interface ServiceCounters {
+  /** Filtrations computed by the workers (successful ones). */
+  filtrations: number;
+  /** Subjects whose filtration came from the cache. */
+  reused: number;
+  /** Matrices loaded. */
+  loads: number;
+}
+
+export interface SubjectOutcome {
+  record: SubjectRecord;
+  reused: boolean;
+  computed: boolean;
+}
+
+export interface FiltrationStageOptions {
+  source: CohortSource;
+  settings: AnalysisSettings;
+  cache: FiltrationCache;
+  pool: WorkerPool;
+  /** Cohort indices of the subjects this run handles, ascending. */
+  share: number[];
+  /** Subjects in flight at once; default 2 × pool size. */
+  window?: number;
+  counters: ServiceCounters;
+  cancelled(): boolean;
+  onStart?(entry: SubjectEntry): void;
+  onOutcome(o: SubjectOutcome): void;
+}
+
+export function unpack(p: PackedFiltration, key: string, matrixSha256: string): CachedFiltration {
+  const diagrams = p.births.map((b, d) =>
+    Array.from(b, (birth, k): [number, number | null] => {
+      const death = p.deaths[d][k];
+      return [birth, Number.isFinite(death) ? death : null];
+    }),
+  );
+  let representatives: CachedFiltration['representatives'] = null;
+  if (p.repNodeStart && p.repNodes && p.repEdgeStart && p.repEdges) {
+    representatives = [];
+    for (let k = 0; k + 1 < p.repNodeStart.length; k++) {
+      const nodes = Array.from(p.repNodes.subarray(p.repNodeStart[k], p.repNodeStart[k + 1]));
+      const edges: Array<[number, number]> = [];
+      for (let t = p.repEdgeStart[k]; t < p.repEdgeStart[k + 1]; t++)
+        edges.push([p.repEdges[2 * t], p.repEdges[2 * t + 1]]);
+      representatives.push({ nodes, edges });
+    }
+  }
+  return {
+    format: 1,
+    key,
+    engineVersion: ENGINE_VERSION,
+    matrixSha256,
+    n: p.n,
+    threshold: Number.isFinite(p.threshold) ? p.threshold : null,
+    thresholdSource: p.thresholdSource,
+    diagrams,
+    representatives,
+  };
+}
+
+/** The reason the cohort check excluded a subject, from its error findings. */
+export function exclusionReason(report: CohortReport, id: string): string {
+  const msgs = report.findings
+    .filter((f) => f.subject === id && f.severity === 'error')
+    .map((f) => f.message);
+  return msgs.length > 0 ? [...new Set(msgs)].join('; ') : 'excluded by the cohort check';
+}
+
+function relativeFile(root: string, file: string): string {
+  const r = relative(root, file);
+  return (r.startsWith('..') ? file : r).split(sep).join('/');
+}
+
+/** Runs stage (1) over opts.share. Returns the records of the subjects finished (absent ones were cancelled). */
+export async function runFiltrationStage(opts: FiltrationStageOptions): Promise<Map<number, SubjectRecord>> {
+  const { source, settings, cache, pool, counters } = opts;
+  const report = source.report;
+  const out = new Map<number, SubjectRecord>();
+  const fileHashes = new Map<string, Promise<string | null>>();
+  const hashFile = (file: string): Promise<string | null> => {
+    let h = fileHashes.get(file);
+    if (!h) {
+      h = sha256File(file).catch(() => null);
+      fileHashes.set(file, h);
+    }
+    return h;
+  };
+
+  const one = async (index: number): Promise<void> => {
+    const entry = report.subjects[index];
+    const base: SubjectRecord = {
+      id: entry.id,
+      index,
+      status: 'failed',
+      reason: null,
+      key: null,
+      matrixSha256: null,
+      file: relativeFile(report.root, entry.source.file),
+      fileSha256: null,
+      ...(entry.source.variable !== undefined ? { variable: entry.source.variable } : {}),
+      ...(entry.source.stackIndex !== undefined ? { stackIndex: entry.source.stackIndex } : {}),
+    };
+    const finish = (record: SubjectRecord, reused: boolean, computed: boolean): void => {
+      out.set(index, record);
+      opts.onOutcome({ record, reused, computed });
+    };
+    if (!entry.usable) {
+      finish({ ...base, status: 'excluded', reason: exclusionReason(report, entry.id) }, false, false);
+      return;
+    }
+    opts.onStart?.(entry);
+    base.fileSha256 = await hashFile(entry.source.file);
+    let matrix;
+    try {
+      matrix = await source.load(entry);
+      counters.loads++;
+    } catch (e) {
+      finish({ ...base, reason: e instanceof Error ? e.message : String(e) }, false, false);
+      return;
+    }
+    if (report.n !== null && matrix.n !== report.n) {
+      finish(
+        {
+          ...base,
+          reason: `matrix is ${matrix.n} × ${matrix.n} but the cohort's matrices are ${report.n} × ${report.n}`,
+        },
+        false,
+        false,
+      );
+      return;
+    }
+    const matrixSha256 = sha256Matrix(matrix);
+    const key = filtrationKey(matrixSha256, settings);
+    const analysed: SubjectRecord = { ...base, status: 'analysed', key, matrixSha256 };
+    if (await cache.get(key)) {
+      counters.reused++;
+      finish(analysed, true, false);
+      return;
+    }
+    if (opts.cancelled()) return;
+    let packed: PackedFiltration;
+    try {
+      packed = await pool.run({
+        taskId: index,
+        n: matrix.n,
+        values: matrix.values,
+        settings: {
+          input: settings.input,
+          transform: settings.transform,
+          maxDim: settings.maxDim,
+          cap: settings.cap,
+          representatives: settings.representatives,
+          dropRegions: settings.dropRegions,
+        },
+      });
+    } catch (e) {
+      if (opts.cancelled()) return;
+      const reason = e instanceof FiltrationError ? e.message : e instanceof Error ? e.message : String(e);
+      finish({ ...base, matrixSha256, reason }, false, false);
+      return;
+    }
+    counters.filtrations++;
+    await cache.put(unpack(packed, key, matrixSha256));
+    finish(analysed, false, true);
+  };
+
+  const window = Math.max(1, opts.window ?? 2 * pool.size);
+  let next = 0;
+  let failure: unknown = null;
+  const lane = async (): Promise<void> => {
+    while (next < opts.share.length && !opts.cancelled() && failure === null) {
+      const index = opts.share[next++];
+      try {
+        await one(index);
+      } catch (e) {
+        // A failure of the run itself (e.g. the cache folder is not writable), not of a subject.
+        failure = e;
+      }
+    }
+  };
+  await Promise.all(Array.from({ length: window }, lane));
+  if (failure !== null) throw failure;
+  return out;
+}

@@ -1,0 +1,65 @@
+/**
+ * Default settings, their checks, and which of them shape a filtration (and so the cache key).
+ */
+import { createHash } from 'node:crypto';
+import type { AnalysisSettings, StatsSettings } from '../api.ts';
+import { DEFAULT_TRANSFORM, TRANSFORMS_FOR } from '../engine/transform.ts';
+import { ENGINE_VERSION } from '../engine/version.ts';
+
+export function defaultAnalysisSettings(): AnalysisSettings {
+  return {
+    input: 'correlation',
+    transform: DEFAULT_TRANSFORM.correlation,
+    maxDim: 1,
+    cap: { kind: 'none' },
+    representatives: true,
+    persistenceFloor: 0,
+    gridPoints: 100,
+    gridRange: null,
+    landscapeLevels: 3,
+    dropRegions: [],
+  };
+}
+
+export function defaultStatsSettings(): StatsSettings {
+  return { groupColumn: null, covariates: [], permutations: 5000, seed: 1 };
+}
+
+/** Throws an Error naming the first setting that cannot be used. */
+export function checkSettings(s: AnalysisSettings): void {
+  if (!TRANSFORMS_FOR[s.input]?.includes(s.transform))
+    throw new Error(`transform '${s.transform}' does not apply to ${s.input} input`);
+  if (s.maxDim !== 1 && s.maxDim !== 2) throw new Error(`maxDim must be 1 or 2, got ${String(s.maxDim)}`);
+  if (s.cap.kind === 'distance' && !(s.cap.value >= 0)) throw new Error('a distance cap must be ≥ 0');
+  if (s.cap.kind === 'density' && !(s.cap.value > 0 && s.cap.value <= 1))
+    throw new Error('a density cap must lie in (0, 1]');
+  for (const r of s.dropRegions)
+    if (!Number.isInteger(r) || r < 0) throw new Error(`dropRegions holds ${r}, not a region index ≥ 0`);
+}
+
+/** The settings a filtration depends on, in a fixed key order. Everything else (features, statistics) can change freely and reuse the cache. */
+export function filtrationSettings(s: AnalysisSettings): Record<string, unknown> {
+  return {
+    engineVersion: ENGINE_VERSION,
+    input: s.input,
+    transform: s.transform,
+    maxDim: s.maxDim,
+    cap: s.cap.kind === 'none' ? { kind: 'none' } : { kind: s.cap.kind, value: s.cap.value },
+    representatives: s.representatives,
+    dropRegions: [...new Set(s.dropRegions)].sort((a, b) => a - b),
+  };
+}
+
+/** SHA-256 (hex) of the filtration settings alone: shards and merges check they agree on it. */
+export function filtrationSettingsHash(s: AnalysisSettings): string {
+  return createHash('sha256')
+    .update(JSON.stringify(filtrationSettings(s)))
+    .digest('hex');
+}
+
+/** The cache key of one subject: its matrix bytes' hash with the filtration settings and ENGINE_VERSION. */
+export function filtrationKey(matrixSha256: string, s: AnalysisSettings): string {
+  return createHash('sha256')
+    .update(JSON.stringify({ matrix: matrixSha256, ...filtrationSettings(s) }))
+    .digest('hex');
+}

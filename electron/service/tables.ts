@@ -1,0 +1,242 @@
+/**
+ * The run's tables on disk: intervals, subjects and provenance, each written atomically, and the
+ * rules for an output folder (what may be replaced, what is refused). A single run and a merge
+ * of shards call writeRunTables with the same records, so they write the same bytes (apart from
+ * provenance.createdAt).
+ */
+import { mkdir, readFile, readdir } from 'node:fs/promises';
+import { join } from 'node:path';
+import type { AnalysisSettings, Provenance, StatsSettings } from '../api.ts';
+import { ENGINE_VERSION } from '../engine/version.ts';
+import pkg from '../../package.json' with { type: 'json' };
+import { openAtomicWriter, removeStaleTemps, writeFileAtomic } from './atomic.ts';
+import type { CachedFiltration, FiltrationCache } from './cache.ts';
+
+export const SOFTWARE_VERSION: string = pkg.version;
+
+export type TableFormat = 'tsv' | 'csv';
+
+/** What became of one subject. Deterministic: no timings, no reused/computed distinction. */
+export interface SubjectRecord {
+  id: string;
+  /** Position in the cohort's subject order. */
+  index: number;
+  status: 'analysed' | 'failed' | 'excluded';
+  reason: string | null;
+  /** Cache key of the filtration (analysed subjects). */
+  key: string | null;
+  matrixSha256: string | null;
+  /** Matrix file relative to the cohort root (forward slashes), with its SHA-256. */
+  file: string | null;
+  fileSha256: string | null;
+  variable?: string;
+  stackIndex?: number;
+}
+
+/** Everything the tables are made from. */
+export interface RunRecords {
+  cohortRoot: string;
+  settings: AnalysisSettings;
+  stats: StatsSettings;
+  /** One record per subject of the cohort, in cohort order. */
+  records: SubjectRecord[];
+}
+
+export const OUT_MARKER = '.loopwise-run.json';
+
+export function tableNames(format: TableFormat): { intervals: string; subjects: string; provenance: string } {
+  return { intervals: `intervals.${format}`, subjects: `subjects.${format}`, provenance: 'provenance.json' };
+}
+
+/** A number as written: the shortest decimal that reads back to the same double; ±∞ as inf / -inf. */
+export function formatNumber(x: number): string {
+  if (x === Infinity) return 'inf';
+  if (x === -Infinity) return '-inf';
+  return String(x);
+}
+
+function cell(v: string | number | null, format: TableFormat): string {
+  if (v === null) return 'n/a';
+  if (typeof v === 'number') return formatNumber(v);
+  if (format === 'tsv') return v.replace(/[\t\r\n]+/g, ' ');
+  return /[",\r\n]/.test(v) ? `"${v.replace(/"/g, '""')}"` : v;
+}
+
+export function tableLine(cells: Array<string | number | null>, format: TableFormat): string {
+  return cells.map((c) => cell(c, format)).join(format === 'tsv' ? '\t' : ',') + '\n';
+}
+
+export class OutDirError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = 'OutDirError';
+  }
+}
+
+interface OutMarker {
+  status: 'running' | 'complete';
+  files: string[];
+}
+
+async function readMarker(dir: string): Promise<OutMarker | null> {
+  try {
+    return JSON.parse(await readFile(join(dir, OUT_MARKER), 'utf8')) as OutMarker;
+  } catch {
+    return null;
+  }
+}
+
+/**
+ * Makes `dir` ready to receive a run's tables. A folder with visible files is refused unless
+ * `force`, except when those files are the tables of an interrupted Loopwise run (its marker says
+ * 'running'): then the run resumes and replaces them. Even with `force`, only Loopwise's own
+ * file names are ever replaced; other files are left alone. Returns the files that will be replaced.
+ */
+export async function prepareOutDir(dir: string, force: boolean, ownNames: string[]): Promise<string[]> {
+  await mkdir(dir, { recursive: true });
+  await removeStaleTemps(dir);
+  const visible = (await readdir(dir)).filter((n) => !n.startsWith('.')).sort();
+  const marker = await readMarker(dir);
+  const ours = new Set([...ownNames, ...(marker?.files ?? [])]);
+  const replaced = visible.filter((n) => ours.has(n));
+  if (visible.length > 0 && !force) {
+    const interrupted = marker?.status === 'running' && visible.every((n) => ours.has(n));
+    if (!interrupted) {
+      const list = visible.slice(0, 5).join(', ') + (visible.length > 5 ? ', …' : '');
+      throw new OutDirError(
+        `${dir} already holds files (${list}); give --force to replace Loopwise's tables there ` +
+          `(other files are left alone), or choose another output folder`,
+      );
+    }
+  }
+  await writeFileAtomic(
+    join(dir, OUT_MARKER),
+    JSON.stringify({ status: 'running', files: [...ours].sort() }),
+  );
+  return replaced;
+}
+
+export async function markOutDirComplete(dir: string, files: string[]): Promise<void> {
+  await writeFileAtomic(
+    join(dir, OUT_MARKER),
+    JSON.stringify({ status: 'complete', files: [...files].sort() }),
+  );
+}
+
+export interface ProvenanceExtras {
+  createdAt: string;
+}
+
+export function buildProvenance(run: RunRecords, createdAt: string): Provenance {
+  const inputHashes: Record<string, string> = {};
+  const inputFiles: NonNullable<Provenance['inputFiles']> = [];
+  for (const r of run.records) {
+    if (r.matrixSha256) inputHashes[r.id] = r.matrixSha256;
+    if (r.file) {
+      inputFiles.push({
+        subject: r.id,
+        file: r.file,
+        sha256: r.fileSha256,
+        ...(r.variable !== undefined ? { variable: r.variable } : {}),
+        ...(r.stackIndex !== undefined ? { stackIndex: r.stackIndex } : {}),
+      });
+    }
+  }
+  return {
+    tool: 'loopwise',
+    version: SOFTWARE_VERSION,
+    engineVersion: ENGINE_VERSION,
+    createdAt,
+    settings: run.settings,
+    stats: run.stats,
+    inputHashes,
+    cohortRoot: run.cohortRoot,
+    inputFiles,
+    counts: {
+      subjects: run.records.length,
+      analysed: run.records.filter((r) => r.status === 'analysed').length,
+      failed: run.records.filter((r) => r.status === 'failed').length,
+      excluded: run.records.filter((r) => r.status === 'excluded').length,
+    },
+  };
+}
+
+/**
+ * Writes intervals, subjects and provenance into `dir` (prepared by prepareOutDir). Entries are
+ * read from the cache one subject at a time, so memory stays bounded for any cohort size.
+ * Returns the file names written.
+ */
+export async function writeRunTables(
+  dir: string,
+  run: RunRecords,
+  cache: FiltrationCache,
+  format: TableFormat,
+  createdAt: string,
+): Promise<{ files: string[]; provenance: Provenance }> {
+  const names = tableNames(format);
+  const maxDim = run.settings.maxDim;
+
+  const intervals = openAtomicWriter(join(dir, names.intervals));
+  const subjects = openAtomicWriter(join(dir, names.subjects));
+  try {
+    await intervals.write(tableLine(['participant_id', 'dimension', 'birth', 'death', 'nodes'], format));
+    const dimCols = Array.from({ length: maxDim + 1 }, (_, d) => `h${d}_intervals`);
+    await subjects.write(
+      tableLine(
+        [
+          'participant_id',
+          'status',
+          'reason',
+          'regions',
+          'threshold',
+          'threshold_source',
+          ...dimCols,
+          'matrix_sha256',
+        ],
+        format,
+      ),
+    );
+    for (const r of run.records) {
+      let entry: CachedFiltration | null = null;
+      if (r.status === 'analysed') {
+        entry = r.key ? await cache.get(r.key) : null;
+        if (!entry) throw new Error(`the cached filtration of subject ${r.id} is missing from ${cache.dir}`);
+        for (let d = 0; d < entry.diagrams.length; d++) {
+          const reps = d === 1 ? entry.representatives : null;
+          let text = '';
+          entry.diagrams[d].forEach(([birth, death], k) => {
+            const nodes = reps ? reps[k].nodes.join(' ') : null;
+            text += tableLine([r.id, d, birth, death ?? Infinity, nodes], format);
+          });
+          if (text) await intervals.write(text);
+        }
+      }
+      await subjects.write(
+        tableLine(
+          [
+            r.id,
+            r.status,
+            r.reason,
+            entry ? entry.n : null,
+            entry ? (entry.threshold ?? Infinity) : null,
+            entry ? entry.thresholdSource : null,
+            ...Array.from({ length: maxDim + 1 }, (_, d) =>
+              entry ? (entry.diagrams[d]?.length ?? 0) : null,
+            ),
+            r.matrixSha256,
+          ],
+          format,
+        ),
+      );
+    }
+    await intervals.close();
+    await subjects.close();
+  } catch (e) {
+    await intervals.abort();
+    await subjects.abort();
+    throw e;
+  }
+  const provenance = buildProvenance(run, createdAt);
+  await writeFileAtomic(join(dir, names.provenance), JSON.stringify(provenance, null, 2) + '\n');
+  return { files: [names.intervals, names.subjects, names.provenance], provenance };
+}

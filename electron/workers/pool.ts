@@ -1,0 +1,116 @@
+/**
+ * A fixed pool of worker threads running filtrations. Plain node:worker_threads: a task's matrix
+ * buffer is transferred to the worker (the caller's array is detached, no copy is made) and the
+ * packed result's buffers are transferred back. Results come back in completion order; callers
+ * that need a deterministic order (the cohort run) place them by subject index, so the outcome is
+ * the same for any pool size.
+ *
+ * A worker that dies (out of memory, a crash in native code) fails only its own task, with the
+ * reason, and is replaced. terminate() stops every worker at once: a cancelled run does not wait
+ * for the filtrations in flight.
+ */
+import { availableParallelism } from 'node:os';
+import { Worker } from 'node:worker_threads';
+import type { FiltrationFailure, FiltrationTask, PackedFiltration } from './filtration.ts';
+
+/** The TypeScript worker behind a tiny .js bootstrap that registers tsx (see bootstrap.js for why). */
+export const DEFAULT_WORKER_ENTRY = new URL('./bootstrap.js', import.meta.url);
+
+export class FiltrationError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = 'FiltrationError';
+  }
+}
+
+interface Slot {
+  worker: Worker;
+  busy: { task: number; resolve: (r: PackedFiltration) => void; reject: (e: Error) => void } | null;
+}
+
+export function defaultPoolSize(): number {
+  return Math.max(1, availableParallelism());
+}
+
+export class WorkerPool {
+  readonly size: number;
+  private readonly entry: URL;
+  private slots: Slot[] = [];
+  private waiting: Array<() => void> = [];
+  private closed = false;
+  /** Filtrations completed by the workers (success or engine error), for tests and benchmarks. */
+  completed = 0;
+
+  constructor(size: number = defaultPoolSize(), entry: URL = DEFAULT_WORKER_ENTRY) {
+    if (!(Number.isInteger(size) && size >= 1)) throw new RangeError(`pool size must be ≥ 1, got ${size}`);
+    this.size = size;
+    this.entry = entry;
+    for (let i = 0; i < size; i++) this.slots.push(this.spawn());
+  }
+
+  private spawn(): Slot {
+    const slot: Slot = { worker: new Worker(this.entry), busy: null };
+    slot.worker.on(
+      'message',
+      (m: { ok: true; result: PackedFiltration } | { ok: false; failure: FiltrationFailure }) => {
+        const busy = slot.busy;
+        if (!busy) return;
+        slot.busy = null;
+        this.completed++;
+        if (m.ok) busy.resolve(m.result);
+        else busy.reject(new FiltrationError(m.failure.error));
+        this.release();
+      },
+    );
+    const die = (reason: string): void => {
+      const busy = slot.busy;
+      slot.busy = null;
+      if (this.closed) return;
+      const i = this.slots.indexOf(slot);
+      if (i >= 0) this.slots[i] = this.spawn();
+      if (busy) busy.reject(new FiltrationError(`worker thread died: ${reason}`));
+      this.release();
+    };
+    slot.worker.on('error', (e) => die(e.message));
+    slot.worker.on('exit', (code) => die(`exit code ${code}`));
+    return slot;
+  }
+
+  private release(): void {
+    const next = this.waiting.shift();
+    if (next) next();
+  }
+
+  /** Runs one task; task.values is transferred (detached on return). */
+  async run(task: FiltrationTask): Promise<PackedFiltration> {
+    for (;;) {
+      if (this.closed) throw new FiltrationError('worker pool is closed');
+      const slot = this.slots.find((s) => s.busy === null);
+      if (slot) {
+        let values = task.values;
+        // Only a buffer the array owns whole can be transferred without detaching someone else's data.
+        if (values.byteOffset !== 0 || values.byteLength !== values.buffer.byteLength)
+          values = values.slice();
+        return new Promise<PackedFiltration>((resolve, reject) => {
+          slot.busy = { task: task.taskId, resolve, reject };
+          slot.worker.postMessage({ ...task, values }, [values.buffer as ArrayBuffer]);
+        });
+      }
+      await new Promise<void>((resolve) => this.waiting.push(resolve));
+    }
+  }
+
+  /** Stops every worker now; tasks in flight reject. */
+  async terminate(): Promise<void> {
+    if (this.closed) return;
+    this.closed = true;
+    const slots = this.slots;
+    this.slots = [];
+    for (const s of slots) {
+      if (s.busy) s.busy.reject(new FiltrationError('cancelled'));
+      s.busy = null;
+    }
+    await Promise.all(slots.map((s) => s.worker.terminate()));
+    for (const w of this.waiting.splice(0)) w();
+  }
+}
