@@ -1,0 +1,120 @@
+/**
+ * The rows of stats.tsv and diagram-tests.tsv as api.ts Tables (null is written as n/a).
+ * Every row carries its family, the permutation scheme, how many permutations were run and the
+ * seed, so that any p-value can be reproduced from the table alone.
+ *
+ *   statsTable([testFamily(design, contrast, family, { seed: 1 })]).columns[0]  // 'family'
+ */
+import type { Table } from '../../api.ts';
+import type { DistanceTest } from './diagram-tests.ts';
+import type { FamilyResult } from './family.ts';
+
+export const STATS_COLUMNS = [
+  'family',
+  'feature',
+  'node_or_point',
+  'contrast',
+  'test',
+  'statistic',
+  'df_num',
+  'df',
+  'p_parametric',
+  'p_uncorrected',
+  'p_fwer',
+  'q_fdr',
+  'effect_kind',
+  'effect_size',
+  'effect_low',
+  'effect_high',
+  'n_per_group',
+  'scheme',
+  'permutation_mode',
+  'permutations',
+  'seed',
+];
+
+const num = (v: number): number | null => (Number.isFinite(v) ? v : null);
+
+/** One row per feature and contrast. */
+export function statsTable(results: FamilyResult[]): { table: Table; warnings: string[] } {
+  const rows: Table['rows'] = [];
+  const warnings: string[] = [];
+  for (const r of results) {
+    const perm = r.permutation;
+    const nPerGroup = r.groupSizes.map((g) => `${g.level}:${g.n}`).join(' ');
+    r.features.forEach((f, j) => {
+      let effect: [string, number | null, number | null, number | null];
+      if (r.effect.kind === 'hedges-g') {
+        const e = r.effect.sizes;
+        effect = ['hedges_g', num(e.g[j]), num(e.low[j]), num(e.high[j])];
+      } else effect = ['partial_eta_squared', num(r.effect.values[j]), null, null];
+      rows.push([
+        r.family,
+        f.feature,
+        f.nodeOrPoint,
+        r.contrast.name,
+        perm.kind,
+        num(perm.statistic[j]),
+        perm.df1,
+        perm.df2,
+        num(r.glm.p[j]),
+        num(perm.pUncorrected[j]),
+        num(perm.pFwer[j]),
+        num(r.qFdr[j]),
+        ...effect,
+        nPerGroup,
+        perm.scheme,
+        perm.run.mode,
+        perm.run.visited,
+        perm.run.seed,
+      ]);
+    });
+    warnings.push(...r.warnings);
+  }
+  return { table: { columns: [...STATS_COLUMNS], rows }, warnings };
+}
+
+export const DIAGRAM_TEST_COLUMNS = [
+  'family',
+  'metric',
+  'test',
+  'statistic',
+  'df_num',
+  'df',
+  'p',
+  'n_per_group',
+  'permutation_mode',
+  'permutations',
+  'seed',
+  'warning',
+];
+
+export interface DiagramTestEntry {
+  /** e.g. 'H1'. */
+  family: string;
+  /** e.g. 'wasserstein-2'. */
+  metric: string;
+  result: DistanceTest;
+  groupSizes: Array<{ level: string; n: number }>;
+}
+
+/** One row per diagram family, metric and test. */
+export function diagramTestsTable(entries: DiagramTestEntry[]): Table {
+  return {
+    columns: [...DIAGRAM_TEST_COLUMNS],
+    rows: entries.map((e) => [
+      e.family,
+      e.metric,
+      e.result.test,
+      num(e.result.statistic),
+      e.result.df1,
+      e.result.df2,
+      num(e.result.p),
+      e.groupSizes.map((g) => `${g.level}:${g.n}`).join(' '),
+      e.result.run.mode,
+      e.result.run.visited,
+      e.result.run.seed,
+      e.result.warnings.length > 0 ? e.result.warnings.join('; ') : null,
+    ]),
+  };
+}
