@@ -1,0 +1,303 @@
+/**
+ * The doors' shared protocol: what the renderer may call beyond LoopwiseApi, how each call's
+ * arguments are checked before they reach the service (Electron IPC and loopback HTTP check alike),
+ * and the browser's HTTP + server-sent-events client. Browser-safe: no node:* imports here.
+ */
+import type {
+  AnalysisSettings,
+  CohortReport,
+  CohortResults,
+  LoopwiseApi,
+  OpenCohortRequest,
+  ProgressEvent,
+  RunSummary,
+  StartRunRequest,
+  StatsSettings,
+  SubjectResult,
+} from './api.ts';
+
+/** What a door tells the renderer about itself. */
+export interface DoorInfo {
+  mode: 'electron' | 'web';
+  version: string;
+  /** The bundled demo cohort, when it is present. */
+  sampleCohort: string | null;
+  /** Where exports go unless the user picks another folder. */
+  defaultOutDir: string | null;
+  /** Browser mode: the only folders the server will touch. Electron: the folders picked so far. */
+  roots: string[];
+}
+
+/** LoopwiseApi plus what only a door can do. */
+export interface LoopwiseDoor extends LoopwiseApi {
+  info(): Promise<DoorInfo>;
+  /** A native folder picker; present only in the Electron app. Resolves null when cancelled. */
+  pickFolder?(purpose: 'cohort' | 'output'): Promise<string | null>;
+}
+
+/** The request/response methods every door forwards (onProgress travels separately). */
+export const API_METHODS = [
+  'openCohort',
+  'defaultSettings',
+  'startRun',
+  'cancelRun',
+  'runSummary',
+  'cohortResults',
+  'subjectResult',
+  'exportRun',
+] as const;
+export type ApiMethod = (typeof API_METHODS)[number];
+
+export function isApiMethod(name: string): name is ApiMethod {
+  return (API_METHODS as readonly string[]).includes(name);
+}
+
+/** A call whose arguments do not have the contract's shape; doors answer it with 400. */
+export class BadRequest extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = 'BadRequest';
+  }
+}
+
+type Obj = Record<string, unknown>;
+
+function isObj(v: unknown): v is Obj {
+  return typeof v === 'object' && v !== null && !Array.isArray(v);
+}
+
+function str(v: unknown, what: string, maxLength = 4096): string {
+  if (typeof v !== 'string' || v.length === 0 || v.length > maxLength || v.includes('\0')) {
+    throw new BadRequest(`${what} must be a non-empty string`);
+  }
+  return v;
+}
+
+function optStr(v: unknown, what: string): string | undefined {
+  return v === undefined || v === null ? undefined : str(v, what);
+}
+
+function num(v: unknown, what: string, min: number, max: number, integer = false): number {
+  if (
+    typeof v !== 'number' ||
+    !Number.isFinite(v) ||
+    v < min ||
+    v > max ||
+    (integer && !Number.isInteger(v))
+  ) {
+    throw new BadRequest(`${what} must be ${integer ? 'an integer' : 'a number'} in [${min}, ${max}]`);
+  }
+  return v;
+}
+
+function oneOf<T extends string>(v: unknown, what: string, allowed: readonly T[]): T {
+  if (typeof v !== 'string' || !(allowed as readonly string[]).includes(v)) {
+    throw new BadRequest(`${what} must be one of ${allowed.join(', ')}`);
+  }
+  return v as T;
+}
+
+function bool(v: unknown, what: string): boolean {
+  if (typeof v !== 'boolean') throw new BadRequest(`${what} must be true or false`);
+  return v;
+}
+
+function arity(args: unknown[], n: number, method: string): void {
+  if (args.length !== n) throw new BadRequest(`${method} takes ${n} argument${n === 1 ? '' : 's'}`);
+}
+
+export function checkOpenCohort(v: unknown): OpenCohortRequest {
+  if (!isObj(v)) throw new BadRequest('the cohort request must be an object');
+  const req: OpenCohortRequest = { dir: str(v.dir, 'cohort.dir') };
+  const participants = optStr(v.participants, 'cohort.participants');
+  const nodes = optStr(v.nodes, 'cohort.nodes');
+  if (participants !== undefined) req.participants = participants;
+  if (nodes !== undefined) req.nodes = nodes;
+  return req;
+}
+
+export function checkSettings(v: unknown): AnalysisSettings {
+  if (!isObj(v)) throw new BadRequest('settings must be an object');
+  const cap = v.cap;
+  if (!isObj(cap)) throw new BadRequest('settings.cap must be an object');
+  const capKind = oneOf(cap.kind, 'settings.cap.kind', ['none', 'distance', 'density'] as const);
+  const range = v.gridRange;
+  let gridRange: [number, number] | null = null;
+  if (range !== null && range !== undefined) {
+    if (!Array.isArray(range) || range.length !== 2)
+      throw new BadRequest('settings.gridRange must be [lo, hi]');
+    const lo = num(range[0], 'settings.gridRange[0]', -1e12, 1e12);
+    const hi = num(range[1], 'settings.gridRange[1]', -1e12, 1e12);
+    if (!(hi > lo)) throw new BadRequest('settings.gridRange must have hi > lo');
+    gridRange = [lo, hi];
+  }
+  if (!Array.isArray(v.dropRegions)) throw new BadRequest('settings.dropRegions must be an array');
+  return {
+    input: oneOf(v.input, 'settings.input', ['correlation', 'weight', 'distance'] as const),
+    transform: oneOf(v.transform, 'settings.transform', [
+      'one-minus',
+      'one-minus-abs',
+      'sqrt',
+      'inverse',
+      'neg-log',
+      'identity',
+    ] as const),
+    maxDim: num(v.maxDim, 'settings.maxDim', 1, 2, true) as 1 | 2,
+    cap:
+      capKind === 'none'
+        ? { kind: 'none' }
+        : capKind === 'distance'
+          ? { kind: 'distance', value: num(cap.value, 'settings.cap.value', 0, 1e12) }
+          : { kind: 'density', value: num(cap.value, 'settings.cap.value', 0, 1) },
+    representatives: bool(v.representatives, 'settings.representatives'),
+    persistenceFloor: num(v.persistenceFloor, 'settings.persistenceFloor', 0, 1e12),
+    gridPoints: num(v.gridPoints, 'settings.gridPoints', 2, 10_000, true),
+    gridRange,
+    landscapeLevels: num(v.landscapeLevels, 'settings.landscapeLevels', 0, 100, true),
+    dropRegions: v.dropRegions.map((r, i) => num(r, `settings.dropRegions[${i}]`, 0, 1e6, true)),
+  };
+}
+
+export function checkStats(v: unknown): StatsSettings {
+  if (!isObj(v)) throw new BadRequest('stats must be an object');
+  if (!Array.isArray(v.covariates)) throw new BadRequest('stats.covariates must be an array');
+  return {
+    groupColumn: v.groupColumn === null ? null : str(v.groupColumn, 'stats.groupColumn', 256),
+    covariates: v.covariates.map((c, i) => str(c, `stats.covariates[${i}]`, 256)),
+    permutations: num(v.permutations, 'stats.permutations', 0, 1_000_000, true),
+    seed: num(v.seed, 'stats.seed', 0, 2 ** 32 - 1, true),
+  };
+}
+
+function checkStartRun(v: unknown): StartRunRequest {
+  if (!isObj(v)) throw new BadRequest('the run request must be an object');
+  return {
+    cohort: checkOpenCohort(v.cohort),
+    settings: checkSettings(v.settings),
+    stats: checkStats(v.stats),
+    outDir: v.outDir === null || v.outDir === undefined ? null : str(v.outDir, 'outDir'),
+  };
+}
+
+/** A checked call: the arguments rebuilt from scratch (no stray fields) and every path they name. */
+export interface CheckedCall {
+  args: unknown[];
+  paths: string[];
+}
+
+/**
+ * Checks one call's arguments against the contract. Throws BadRequest naming the first bad field.
+ * The returned `paths` are what the door must confine to the folders the user named.
+ */
+export function checkCall(method: ApiMethod, args: unknown[]): CheckedCall {
+  const id = (v: unknown, what: string) => str(v, what, 256);
+  switch (method) {
+    case 'openCohort': {
+      arity(args, 1, method);
+      const req = checkOpenCohort(args[0]);
+      return { args: [req], paths: cohortPaths(req) };
+    }
+    case 'defaultSettings':
+      arity(args, 0, method);
+      return { args: [], paths: [] };
+    case 'startRun': {
+      arity(args, 1, method);
+      const req = checkStartRun(args[0]);
+      return { args: [req], paths: [...cohortPaths(req.cohort), ...(req.outDir ? [req.outDir] : [])] };
+    }
+    case 'cancelRun':
+    case 'runSummary':
+    case 'cohortResults':
+      arity(args, 1, method);
+      return { args: [id(args[0], 'runId')], paths: [] };
+    case 'subjectResult':
+      arity(args, 2, method);
+      return { args: [id(args[0], 'runId'), id(args[1], 'subjectId')], paths: [] };
+    case 'exportRun': {
+      arity(args, 3, method);
+      const outDir = str(args[1], 'outDir');
+      return { args: [id(args[0], 'runId'), outDir, bool(args[2], 'overwrite')], paths: [outDir] };
+    }
+  }
+}
+
+function cohortPaths(req: OpenCohortRequest): string[] {
+  return [req.dir, ...(req.participants ? [req.participants] : []), ...(req.nodes ? [req.nodes] : [])];
+}
+
+// ---------- The browser client ----------
+
+/** Where the token lives in requests: a header for fetch, a query parameter for EventSource. */
+export const TOKEN_HEADER = 'x-loopwise-token';
+
+interface EventSourceLike {
+  onmessage: ((e: { data: string }) => void) | null;
+  close(): void;
+}
+
+export interface HttpClientOptions {
+  /** e.g. 'http://127.0.0.1:5123' or '' for the page's own origin. */
+  base: string;
+  token: string;
+  fetch?: typeof fetch;
+  eventSource?: (url: string) => EventSourceLike;
+}
+
+/** The LoopwiseDoor over loopback HTTP: POST /api/<method> with a JSON array of arguments; progress by SSE. */
+export function createHttpClient(opts: HttpClientOptions): LoopwiseDoor {
+  const doFetch = opts.fetch ?? ((input: RequestInfo | URL, init?: RequestInit) => fetch(input, init));
+  const call = async <T>(method: string, args: unknown[]): Promise<T> => {
+    const res = await doFetch(`${opts.base}/api/${method}`, {
+      method: 'POST',
+      headers: { 'content-type': 'application/json', [TOKEN_HEADER]: opts.token },
+      body: JSON.stringify(args),
+    });
+    const text = await res.text();
+    if (!res.ok) {
+      let message = text;
+      try {
+        const body: unknown = JSON.parse(text);
+        if (isObj(body) && typeof body.error === 'string') message = body.error;
+      } catch {
+        // not JSON: keep the text as it came
+      }
+      throw new Error(`${method}: ${message || res.statusText} (HTTP ${res.status})`);
+    }
+    return (text === '' ? undefined : JSON.parse(text)) as T;
+  };
+
+  const listeners = new Set<(e: ProgressEvent) => void>();
+  let source: EventSourceLike | null = null;
+  const openSource = () => {
+    const url = `${opts.base}/api/events?token=${encodeURIComponent(opts.token)}`;
+    source = opts.eventSource ? opts.eventSource(url) : (new EventSource(url) as unknown as EventSourceLike);
+    source.onmessage = (e) => {
+      const event = JSON.parse(e.data) as ProgressEvent;
+      for (const l of listeners) l(event);
+    };
+  };
+
+  return {
+    info: () => call<DoorInfo>('info', []),
+    openCohort: (req) => call<CohortReport>('openCohort', [req]),
+    defaultSettings: () => call<{ settings: AnalysisSettings; stats: StatsSettings }>('defaultSettings', []),
+    startRun: (req) => call<{ runId: string }>('startRun', [req]),
+    cancelRun: (runId) => call<void>('cancelRun', [runId]),
+    runSummary: (runId) => call<RunSummary | null>('runSummary', [runId]),
+    cohortResults: (runId) => call<CohortResults | null>('cohortResults', [runId]),
+    subjectResult: (runId, subjectId) => call<SubjectResult | null>('subjectResult', [runId, subjectId]),
+    exportRun: (runId, outDir, overwrite) =>
+      call<{ files: string[] }>('exportRun', [runId, outDir, overwrite]),
+    onProgress(listener) {
+      listeners.add(listener);
+      if (!source) openSource();
+      return () => {
+        listeners.delete(listener);
+        if (listeners.size === 0 && source) {
+          source.close();
+          source = null;
+        }
+      };
+    },
+  };
+}

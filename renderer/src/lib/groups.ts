@@ -1,0 +1,193 @@
+/** The Groups view's logic: curve bands, feature distributions beside their tests, the subject map. */
+import type { CohortResults, CurveBand, Table } from '../../../electron/api.ts';
+import { baseLayout, type Figure, type Trace } from './figure.ts';
+import { groupColour } from './format.ts';
+import { asNumber, findColumn, records, type Cell } from './tables.ts';
+
+/** Group labels in the order they first appear in the curves (the colour order everywhere). */
+export function groupsOf(results: CohortResults): string[] {
+  const seen: string[] = [];
+  const add = (g: string | null) => {
+    if (g !== null && !seen.includes(g)) seen.push(g);
+  };
+  for (const c of results.groupCurves) add(c.group);
+  for (const e of results.embedding ?? []) add(e.group);
+  return seen;
+}
+
+export function curveNames(bands: CurveBand[]): string[] {
+  return [...new Set(bands.map((b) => b.curve))];
+}
+
+const CURVE_TITLES: Record<string, string> = {
+  betti0: 'Betti-0 curve (components)',
+  betti1: 'Betti-1 curve (loops)',
+  betti2: 'Betti-2 curve (voids)',
+  euler: 'Euler characteristic curve',
+};
+
+export function curveTitle(curve: string): string {
+  if (CURVE_TITLES[curve]) return CURVE_TITLES[curve];
+  const m = /^landscape(\d+)-(\d+)$/.exec(curve);
+  return m ? `Persistence landscape, H${m[1]} level ${m[2]}` : curve;
+}
+
+function rgba(hex: string, alpha: number): string {
+  const n = parseInt(hex.slice(1), 16);
+  return `rgba(${(n >> 16) & 255},${(n >> 8) & 255},${n & 255},${alpha})`;
+}
+
+/**
+ * Mean curve per group with its band drawn as a filled polygon (upper edge out, lower edge back),
+ * so each band is one trace and legends toggle mean and band together.
+ */
+export function curveFigure(bands: CurveBand[], curve: string, groups: string[]): Figure {
+  const data: Trace[] = [];
+  for (const b of bands.filter((x) => x.curve === curve)) {
+    const colour = groupColour(groups, b.group);
+    data.push({
+      type: 'scatter',
+      mode: 'lines',
+      x: [...b.grid, ...[...b.grid].reverse()],
+      y: [...b.upper, ...[...b.lower].reverse()],
+      fill: 'toself',
+      fillcolor: rgba(colour, 0.18),
+      line: { width: 0 },
+      hoverinfo: 'skip',
+      legendgroup: b.group,
+      showlegend: false,
+      name: `${b.group} band`,
+    });
+    data.push({
+      type: 'scatter',
+      mode: 'lines',
+      x: b.grid,
+      y: b.mean,
+      line: { color: colour, width: 2 },
+      legendgroup: b.group,
+      name: b.group,
+    });
+  }
+  return {
+    name: `curve-${curve}`,
+    data,
+    layout: baseLayout(curveTitle(curve), {
+      xaxis: { title: { text: 'filtration value' } },
+      yaxis: { title: { text: curve === 'euler' ? 'χ' : 'mean' } },
+      legend: { orientation: 'h', y: -0.2 },
+    }),
+  };
+}
+
+/** Scalar feature columns of the features table: numeric, and neither identifiers, group nor covariates. */
+export function featureColumns(features: Table, exclude: string[]): string[] {
+  const skip = new Set(['subject', 'id', 'participant_id', 'group', ...exclude].map((s) => s.toLowerCase()));
+  return features.columns.filter(
+    (c, i) => !skip.has(c.toLowerCase()) && features.rows.some((r) => typeof r[i] === 'number'),
+  );
+}
+
+/** Values of one feature split by group (subjects with a missing group or value are left out). */
+export function featureByGroup(
+  features: Table,
+  feature: string,
+  groupColumn: string,
+): Array<{ group: string; subjects: string[]; values: number[] }> {
+  const subjectCol = findColumn(features, ['subject', 'participant_id', 'id']);
+  const out = new Map<string, { group: string; subjects: string[]; values: number[] }>();
+  for (const r of records(features)) {
+    const g = r[groupColumn];
+    const v = asNumber(r[feature]);
+    if (g === null || g === undefined || v === null) continue;
+    const key = String(g);
+    const entry = out.get(key) ?? { group: key, subjects: [], values: [] };
+    entry.subjects.push(subjectCol ? String(r[subjectCol]) : '');
+    entry.values.push(v);
+    out.set(key, entry);
+  }
+  return [...out.values()];
+}
+
+/** Violin with a box inside and every subject as a point: the distribution, its summary and the data. */
+export function distributionFigure(
+  features: Table,
+  feature: string,
+  groupColumn: string,
+  groups: string[],
+): Figure {
+  const split = featureByGroup(features, feature, groupColumn);
+  return {
+    name: `distribution-${feature}`,
+    data: split.map((s) => ({
+      type: 'violin',
+      name: s.group,
+      x: s.values.map(() => s.group),
+      y: s.values,
+      text: s.subjects,
+      box: { visible: true },
+      meanline: { visible: true },
+      points: 'all',
+      pointpos: 0,
+      jitter: 0.4,
+      marker: { size: 6, opacity: 0.8 },
+      line: { color: groupColour(groups, s.group) },
+      hovertemplate: '%{text}: %{y}<extra></extra>',
+    })),
+    layout: baseLayout(feature, { showlegend: false, yaxis: { title: { text: feature }, zeroline: false } }),
+  };
+}
+
+/** The stats rows about one feature (all tests of it), as column → value. */
+export function statsFor(stats: Table | null, feature: string): Array<Record<string, Cell>> {
+  if (!stats) return [];
+  const col = findColumn(stats, ['feature', 'measure', 'name', 'variable']);
+  if (!col) return [];
+  return records(stats).filter((r) => r[col] === feature);
+}
+
+/** Columns of a stats table that hold a corrected p-value, in order of preference. */
+export const CORRECTED_P = [
+  'p_fwer',
+  'p_fdr',
+  'p_corrected',
+  'p_adjusted',
+  'p_adj',
+  'q',
+  'q_value',
+  'p_holm',
+];
+export const RAW_P = ['p', 'p_uncorrected', 'p_value', 'pvalue', 'p_raw'];
+
+/** Subjects on the 2-D map of diagram distances, one trace per group. */
+export function embeddingFigure(results: CohortResults, groups: string[]): Figure | null {
+  const pts = results.embedding;
+  if (!pts || pts.length === 0) return null;
+  const byGroup = new Map<string, typeof pts>();
+  for (const p of pts) {
+    const key = p.group ?? 'n/a';
+    byGroup.set(key, [...(byGroup.get(key) ?? []), p]);
+  }
+  const method = pts[0].method.toUpperCase();
+  return {
+    name: `subject-map-${pts[0].method}`,
+    data: [...byGroup].map(([g, ps]) => ({
+      type: 'scatter',
+      mode: 'markers',
+      name: g,
+      x: ps.map((p) => p.x),
+      y: ps.map((p) => p.y),
+      text: ps.map((p) => p.subject),
+      customdata: ps.map((p) => p.subject),
+      marker: {
+        size: 10,
+        color: groupColour(groups, g === 'n/a' ? null : g),
+        line: { color: '#fff', width: 1 },
+      },
+      hovertemplate: '%{text}<extra></extra>',
+    })),
+    layout: baseLayout(`Subject map (${method} of diagram distances)`, {
+      xaxis: { title: { text: `${method} 1` }, zeroline: false },
+      yaxis: { title: { text: `${method} 2` }, zeroline: false, scaleanchor: 'x' },
+    }),
+  };
+}

@@ -1,0 +1,286 @@
+/** The Regions view's logic: per node × measure group differences, their ranking, layouts and network summaries. */
+import type { NodeInfo, Table } from '../../../electron/api.ts';
+import { baseLayout, type Figure, type Trace } from './figure.ts';
+import type { NodeLayout } from './layout.ts';
+import { CORRECTED_P } from './groups.ts';
+import { asNumber, findColumn, records } from './tables.ts';
+
+export interface NodeEffect {
+  node: number;
+  label: string;
+  network: string | null;
+  measure: string;
+  /** Mean of group B minus mean of group A. */
+  difference: number;
+  /** Hedges' g: the difference over the pooled SD, small-sample corrected. NaN when undefined. */
+  g: number;
+  nA: number;
+  nB: number;
+  /** Corrected p from the run's statistics, when they tested this node and measure. */
+  pCorrected: number | null;
+  significant: boolean;
+}
+
+/**
+ * Hedges' g for two samples: (mean B − mean A) / pooled SD × (1 − 3 / (4(nA + nB) − 9)).
+ * Hedges (1981), "Distribution theory for Glass's estimator of effect size", J. Educ. Stat. 6(2).
+ *   hedgesG([1, 2, 3], [3, 4, 5]) → 2 × (1 − 3/15) = 1.6
+ */
+export function hedgesG(a: number[], b: number[]): number {
+  const nA = a.length;
+  const nB = b.length;
+  if (nA < 2 || nB < 2) return NaN;
+  const mean = (x: number[]) => x.reduce((s, v) => s + v, 0) / x.length;
+  const mA = mean(a);
+  const mB = mean(b);
+  const ss = (x: number[], m: number) => x.reduce((s, v) => s + (v - m) ** 2, 0);
+  const pooled = Math.sqrt((ss(a, mA) + ss(b, mB)) / (nA + nB - 2));
+  if (!(pooled > 0)) return NaN;
+  return ((mB - mA) / pooled) * (1 - 3 / (4 * (nA + nB) - 9));
+}
+
+export function measuresOf(nodeScores: Table): string[] {
+  const col = findColumn(nodeScores, ['measure']);
+  if (!col) return [];
+  return [...new Set(records(nodeScores).map((r) => String(r[col])))];
+}
+
+/**
+ * Corrected p per (measure, node label) from the stats table, for node-level rows. Two layouts are
+ * read: columns 'measure' and 'node'/'label'; or a 'feature' column naming 'measure:label' (or
+ * 'measure[label]' / 'measure/label').
+ */
+export function nodePValues(stats: Table | null): Map<string, number> {
+  const out = new Map<string, number>();
+  if (!stats) return out;
+  const pCol = findColumn(stats, CORRECTED_P);
+  if (!pCol) return out;
+  const measureCol = findColumn(stats, ['measure']);
+  const nodeCol = findColumn(stats, ['label', 'node', 'region']);
+  const featureCol = findColumn(stats, ['feature', 'name', 'variable']);
+  for (const r of records(stats)) {
+    const p = asNumber(r[pCol]);
+    if (p === null) continue;
+    if (measureCol && nodeCol && r[measureCol] !== null && r[nodeCol] !== null) {
+      out.set(`${r[measureCol]}\u0000${r[nodeCol]}`, p);
+    } else if (featureCol && typeof r[featureCol] === 'string') {
+      const m = /^(.+?)(?::|\[|\/)(.+?)\]?$/.exec(r[featureCol] as string);
+      if (m) out.set(`${m[1]}\u0000${m[2]}`, p);
+    }
+  }
+  return out;
+}
+
+/**
+ * Group differences of every node and measure between groups A (reference) and B, from the long
+ * node-score table and each subject's group. Significance is read from the run's corrected p-values
+ * (alpha 0.05, common practice); nodes the run did not test are never marked.
+ */
+export function nodeEffects(
+  nodeScores: Table,
+  groupOf: Map<string, string | null>,
+  groupA: string,
+  groupB: string,
+  stats: Table | null,
+  alpha = 0.05,
+): NodeEffect[] {
+  const subj = findColumn(nodeScores, ['subject', 'participant_id', 'id']);
+  const nodeCol = findColumn(nodeScores, ['node', 'index']);
+  const labelCol = findColumn(nodeScores, ['label']);
+  const netCol = findColumn(nodeScores, ['network']);
+  const measureCol = findColumn(nodeScores, ['measure']);
+  const valueCol = findColumn(nodeScores, ['value']);
+  if (!subj || !nodeCol || !measureCol || !valueCol) return [];
+  const cells = new Map<
+    string,
+    { node: number; label: string; network: string | null; measure: string; a: number[]; b: number[] }
+  >();
+  for (const r of records(nodeScores)) {
+    const g = groupOf.get(String(r[subj]));
+    if (g !== groupA && g !== groupB) continue;
+    const v = asNumber(r[valueCol]);
+    const node = asNumber(r[nodeCol]);
+    if (v === null || node === null) continue;
+    const measure = String(r[measureCol]);
+    const key = `${measure}\u0000${node}`;
+    let c = cells.get(key);
+    if (!c) {
+      c = {
+        node,
+        label: labelCol ? String(r[labelCol] ?? node) : String(node),
+        network: netCol && r[netCol] !== null ? String(r[netCol]) : null,
+        measure,
+        a: [],
+        b: [],
+      };
+      cells.set(key, c);
+    }
+    (g === groupA ? c.a : c.b).push(v);
+  }
+  const ps = nodePValues(stats);
+  return [...cells.values()].map((c) => {
+    const mean = (x: number[]) => (x.length ? x.reduce((s, v) => s + v, 0) / x.length : NaN);
+    const p = ps.get(`${c.measure}\u0000${c.label}`) ?? ps.get(`${c.measure}\u0000${c.node}`) ?? null;
+    return {
+      node: c.node,
+      label: c.label,
+      network: c.network,
+      measure: c.measure,
+      difference: mean(c.b) - mean(c.a),
+      g: hedgesG(c.a, c.b),
+      nA: c.a.length,
+      nB: c.b.length,
+      pCorrected: p,
+      significant: p !== null && p < alpha,
+    };
+  });
+}
+
+/** One measure's effects, largest |g| first (undefined effects last). */
+export function ranked(effects: NodeEffect[], measure: string): NodeEffect[] {
+  const key = (e: NodeEffect) => (Number.isFinite(e.g) ? Math.abs(e.g) : -1);
+  return effects.filter((e) => e.measure === measure).sort((x, y) => key(y) - key(x) || x.node - y.node);
+}
+
+/** The ranked bar chart: one bar per node, significant ones outlined and starred. */
+export function rankedBarFigure(
+  effects: NodeEffect[],
+  measure: string,
+  groupA: string,
+  groupB: string,
+  top = 40,
+): Figure {
+  const rows = ranked(effects, measure).slice(0, top).reverse();
+  return {
+    name: `regions-${measure}`,
+    data: [
+      {
+        type: 'bar',
+        orientation: 'h',
+        x: rows.map((e) => (Number.isFinite(e.g) ? e.g : 0)),
+        y: rows.map((e) => (e.significant ? `${e.label} *` : e.label)),
+        marker: {
+          color: rows.map((e) => (e.g >= 0 ? '#D55E00' : '#0072B2')),
+          line: { color: rows.map((e) => (e.significant ? '#000' : 'rgba(0,0,0,0)')), width: 2 },
+        },
+        customdata: rows.map((e) => [e.pCorrected ?? 'not tested', e.network ?? '']),
+        hovertemplate:
+          '%{y}: g = %{x:.3f}<br>corrected p: %{customdata[0]}<br>%{customdata[1]}<extra></extra>',
+      },
+    ],
+    layout: baseLayout(`${measure}: ${groupB} − ${groupA} (Hedges' g; * corrected p < 0.05)`, {
+      height: Math.max(320, 18 * rows.length + 90),
+      margin: { l: 140, r: 20, t: 40, b: 50 },
+      xaxis: { title: { text: "Hedges' g" }, zeroline: true },
+      yaxis: { automargin: true },
+    }),
+  };
+}
+
+/** Nodes on a layout, sized by |g| and coloured by g (diverging, symmetric about 0). */
+export function nodeMapFigure(
+  layout: NodeLayout,
+  effects: NodeEffect[],
+  measure: string,
+  nodes: NodeInfo[],
+): Figure {
+  const byNode = new Map(effects.filter((e) => e.measure === measure).map((e) => [e.node, e]));
+  const g = layout.nodes.map((n) => byNode.get(n.index)?.g ?? NaN);
+  const maxAbs = Math.max(1e-9, ...g.filter(Number.isFinite).map(Math.abs));
+  const sig = layout.nodes.map((n) => byNode.get(n.index)?.significant ?? false);
+  const circle = layout.kind === 'circle';
+  const traces: Trace[] = [
+    {
+      type: 'scatter',
+      mode: 'markers',
+      x: layout.nodes.map((n) => n.x),
+      y: layout.nodes.map((n) => n.y),
+      text: layout.nodes.map((n) => `${n.label}${n.network ? ` (${n.network})` : ''}`),
+      customdata: g.map((v) => (Number.isFinite(v) ? v.toFixed(3) : 'n/a')),
+      hovertemplate: '%{text}<br>g = %{customdata}<extra></extra>',
+      marker: {
+        size: g.map((v) => 6 + 18 * (Number.isFinite(v) ? Math.abs(v) / maxAbs : 0)),
+        color: g.map((v) => (Number.isFinite(v) ? v : 0)),
+        colorscale: 'RdBu',
+        reversescale: true,
+        cmin: -maxAbs,
+        cmax: maxAbs,
+        colorbar: { title: { text: 'g' }, thickness: 12 },
+        line: { color: sig.map((s) => (s ? '#000' : '#fff')), width: sig.map((s) => (s ? 2.5 : 1)) },
+      },
+      showlegend: false,
+    },
+  ];
+  if (circle) traces.push(...networkLabels(layout, nodes));
+  const title = circle
+    ? 'Nodes by network'
+    : layout.kind === 'axial'
+      ? 'Axial (from above)'
+      : 'Sagittal (from the side)';
+  return {
+    name: `regions-${measure}-${layout.kind}`,
+    data: traces,
+    layout: baseLayout(title, {
+      xaxis: { title: { text: layout.xTitle }, visible: !circle, zeroline: false },
+      yaxis: { title: { text: layout.yTitle }, visible: !circle, zeroline: false, scaleanchor: 'x' },
+      height: 380,
+    }),
+  };
+}
+
+/** Network names placed just outside their arc of the circle. */
+export function networkLabels(layout: NodeLayout, _nodes: NodeInfo[]): Trace[] {
+  const nets = new Map<string, { x: number; y: number; k: number }>();
+  for (const n of layout.nodes) {
+    if (!n.network) continue;
+    const s = nets.get(n.network) ?? { x: 0, y: 0, k: 0 };
+    s.x += n.x;
+    s.y += n.y;
+    s.k++;
+    nets.set(n.network, s);
+  }
+  if (nets.size === 0) return [];
+  const pts = [...nets].map(([name, s]) => {
+    const r = Math.hypot(s.x, s.y) || 1;
+    return { name, x: (1.22 * s.x) / r, y: (1.22 * s.y) / r };
+  });
+  return [
+    {
+      type: 'scatter',
+      mode: 'text',
+      x: pts.map((p) => p.x),
+      y: pts.map((p) => p.y),
+      text: pts.map((p) => p.name),
+      textfont: { size: 11, color: '#444' },
+      hoverinfo: 'skip',
+      showlegend: false,
+    },
+  ];
+}
+
+export interface NetworkSummary {
+  network: string;
+  nodes: number;
+  meanG: number;
+  maxAbsG: number;
+  significant: number;
+}
+
+/** Per network: how many nodes, their mean and largest |g|, how many reach corrected significance. */
+export function networkSummary(effects: NodeEffect[], measure: string): NetworkSummary[] {
+  const by = new Map<string, NodeEffect[]>();
+  for (const e of effects.filter((x) => x.measure === measure)) {
+    const key = e.network ?? '(none)';
+    by.set(key, [...(by.get(key) ?? []), e]);
+  }
+  return [...by].map(([network, es]) => {
+    const gs = es.map((e) => e.g).filter(Number.isFinite);
+    return {
+      network,
+      nodes: es.length,
+      meanG: gs.length ? gs.reduce((s, v) => s + v, 0) / gs.length : NaN,
+      maxAbsG: gs.length ? Math.max(...gs.map(Math.abs)) : NaN,
+      significant: es.filter((e) => e.significant).length,
+    };
+  });
+}

@@ -1,0 +1,146 @@
+/** The app's state: the door, the open cohort, the settings, the run and its results. */
+import type {
+  AnalysisSettings,
+  CohortReport,
+  CohortResults,
+  ProgressEvent,
+  RunSummary,
+  StatsSettings,
+  SubjectResult,
+} from '../../../electron/api.ts';
+import type { DoorInfo, LoopwiseDoor } from '../../../electron/web-client.ts';
+import { mergeFailures } from './progress.ts';
+import { defaultGroupColumn } from './study.ts';
+
+export type ViewName = 'study' | 'analysis' | 'groups' | 'regions' | 'subject' | 'export';
+
+export class Session {
+  readonly door: LoopwiseDoor;
+  view = $state<ViewName>('study');
+  info = $state<DoorInfo | null>(null);
+  error = $state<string | null>(null);
+  busy = $state(false);
+
+  cohortDir = $state('');
+  report = $state<CohortReport | null>(null);
+  settings = $state<AnalysisSettings | null>(null);
+  stats = $state<StatsSettings | null>(null);
+  outDir = $state('');
+
+  runId = $state<string | null>(null);
+  progress = $state<ProgressEvent | null>(null);
+  failures = $state<Array<{ subject: string; reason: string }>>([]);
+  /** Subjects seen during the run: whether their filtration came from the cache. */
+  seen = $state<Array<{ subject: string; cached: boolean }>>([]);
+  summary = $state<RunSummary | null>(null);
+  results = $state<CohortResults | null>(null);
+
+  subjectId = $state<string | null>(null);
+  subject = $state<SubjectResult | null>(null);
+
+  private lastReused = 0;
+
+  constructor(door: LoopwiseDoor) {
+    this.door = door;
+    door.onProgress((e) => this.onProgress(e));
+  }
+
+  private async attempt<T>(what: () => Promise<T>): Promise<T | undefined> {
+    this.error = null;
+    this.busy = true;
+    try {
+      return await what();
+    } catch (e) {
+      this.error = e instanceof Error ? e.message : String(e);
+      return undefined;
+    } finally {
+      this.busy = false;
+    }
+  }
+
+  async init(): Promise<void> {
+    await this.attempt(async () => {
+      this.info = await this.door.info();
+      const d = await this.door.defaultSettings();
+      this.settings = d.settings;
+      this.stats = d.stats;
+      this.cohortDir = this.info.sampleCohort ?? '';
+      this.outDir = this.info.defaultOutDir ?? '';
+    });
+  }
+
+  async openCohort(dir: string): Promise<void> {
+    await this.attempt(async () => {
+      const report = await this.door.openCohort({ dir });
+      this.cohortDir = dir;
+      this.report = report;
+      this.results = null;
+      this.runId = null;
+      this.progress = null;
+      this.subject = null;
+      this.subjectId = null;
+      if (this.stats) {
+        const choice = this.stats.groupColumn;
+        const valid = choice !== null && report.columns.some((c) => c.name === choice);
+        this.stats = { ...this.stats, groupColumn: valid ? choice : defaultGroupColumn(report.columns) };
+      }
+    });
+  }
+
+  async pickFolder(purpose: 'cohort' | 'output'): Promise<void> {
+    if (!this.door.pickFolder) return;
+    const picked = await this.attempt(() => this.door.pickFolder!(purpose));
+    if (!picked) return;
+    if (purpose === 'cohort') await this.openCohort(picked);
+    else this.outDir = picked;
+  }
+
+  async startRun(): Promise<void> {
+    if (!this.report || !this.settings || !this.stats) return;
+    this.failures = [];
+    this.seen = [];
+    this.summary = null;
+    this.results = null;
+    this.progress = null;
+    this.lastReused = 0;
+    const req = {
+      cohort: { dir: this.cohortDir },
+      settings: $state.snapshot(this.settings) as AnalysisSettings,
+      stats: $state.snapshot(this.stats) as StatsSettings,
+      outDir: null,
+    };
+    const started = await this.attempt(() => this.door.startRun(req));
+    if (started) this.runId = started.runId;
+  }
+
+  async cancelRun(): Promise<void> {
+    if (this.runId) await this.attempt(() => this.door.cancelRun(this.runId!));
+  }
+
+  private onProgress(e: ProgressEvent): void {
+    if (this.runId !== null && e.runId !== this.runId) return;
+    this.progress = e;
+    this.failures = mergeFailures(this.failures, e.failures);
+    if (e.currentSubject && !this.seen.some((s) => s.subject === e.currentSubject)) {
+      this.seen = [...this.seen, { subject: e.currentSubject, cached: e.reused > this.lastReused }];
+    }
+    this.lastReused = e.reused;
+    if (e.phase === 'done' || e.phase === 'cancelled' || e.phase === 'failed') void this.finish(e.runId);
+  }
+
+  private async finish(runId: string): Promise<void> {
+    await this.attempt(async () => {
+      this.summary = await this.door.runSummary(runId);
+      if (this.summary?.status === 'done') this.results = await this.door.cohortResults(runId);
+    });
+  }
+
+  async openSubject(id: string): Promise<void> {
+    if (!this.runId) return;
+    this.subjectId = id;
+    this.view = 'subject';
+    const r = await this.attempt(() => this.door.subjectResult(this.runId!, id));
+    this.subject = r ?? null;
+    if (r === null) this.error = `No result for ${id}: it was excluded or failed in this run.`;
+  }
+}

@@ -1,0 +1,111 @@
+/** The Study view's logic: the participants table, the QC report and the choice of group and covariates. */
+import type { CohortReport, ColumnInfo, CovariateValue, QcFinding, Severity } from '../../../electron/api.ts';
+
+export interface ParticipantRow {
+  id: string;
+  usable: boolean;
+  group: string | null;
+  values: CovariateValue[];
+  errors: number;
+  warnings: number;
+}
+
+/** Columns that can split the cohort into groups: categorical with 2 to 12 levels. */
+export function groupColumnChoices(columns: ColumnInfo[]): string[] {
+  return columns
+    .filter((c) => c.kind === 'categorical' && (c.levels?.length ?? 0) >= 2 && (c.levels?.length ?? 0) <= 12)
+    .map((c) => c.name);
+}
+
+/** Columns that can enter the model as covariates: everything but the group column and identifiers. */
+export function covariateChoices(columns: ColumnInfo[], groupColumn: string | null): string[] {
+  return columns
+    .filter((c) => c.name !== groupColumn && c.name !== 'participant_id' && c.name !== 'subject')
+    .filter((c) => c.kind === 'numeric' || (c.levels?.length ?? 0) >= 2)
+    .map((c) => c.name);
+}
+
+/** The column the service picks when the user has not: 'group' or 'diagnosis' if present, else the first choice. */
+export function defaultGroupColumn(columns: ColumnInfo[]): string | null {
+  const choices = groupColumnChoices(columns);
+  return choices.find((c) => /^(group|diagnosis|dx|condition)$/i.test(c)) ?? choices[0] ?? null;
+}
+
+export function participantRows(
+  report: CohortReport,
+  groupColumn: string | null,
+  shown: string[],
+): ParticipantRow[] {
+  const counts = findingCounts(report.findings);
+  return report.subjects.map((s) => {
+    const g = groupColumn ? s.covariates[groupColumn] : null;
+    const c = counts.get(s.id) ?? { errors: 0, warnings: 0 };
+    return {
+      id: s.id,
+      usable: s.usable,
+      group: g === null || g === undefined ? null : String(g),
+      values: shown.map((col) => s.covariates[col] ?? null),
+      ...c,
+    };
+  });
+}
+
+function findingCounts(findings: QcFinding[]): Map<string, { errors: number; warnings: number }> {
+  const m = new Map<string, { errors: number; warnings: number }>();
+  for (const f of findings) {
+    if (!f.subject) continue;
+    const c = m.get(f.subject) ?? { errors: 0, warnings: 0 };
+    if (f.severity === 'error') c.errors++;
+    else c.warnings++;
+    m.set(f.subject, c);
+  }
+  return m;
+}
+
+export interface FindingFilter {
+  severity: Severity | 'all';
+  /** Matched case-insensitively against subject, file, code and message. */
+  text: string;
+}
+
+export function filterFindings(findings: QcFinding[], filter: FindingFilter): QcFinding[] {
+  const needle = filter.text.trim().toLowerCase();
+  return findings
+    .filter((f) => filter.severity === 'all' || f.severity === filter.severity)
+    .filter(
+      (f) =>
+        !needle ||
+        [f.subject, f.file, f.code, f.message].some((x) => x !== null && x.toLowerCase().includes(needle)),
+    )
+    .sort((a, b) => (a.severity === b.severity ? 0 : a.severity === 'error' ? -1 : 1));
+}
+
+export interface CohortSummary {
+  subjects: number;
+  usable: number;
+  excluded: number;
+  errors: number;
+  warnings: number;
+  /** Usable subjects per level of the group column (missing values under 'n/a'). */
+  groups: Array<{ group: string; count: number }>;
+}
+
+export function cohortSummary(report: CohortReport, groupColumn: string | null): CohortSummary {
+  const usable = report.subjects.filter((s) => s.usable);
+  const groups = new Map<string, number>();
+  if (groupColumn) {
+    for (const s of usable) {
+      const g = s.covariates[groupColumn];
+      const key = g === null || g === undefined ? 'n/a' : String(g);
+      groups.set(key, (groups.get(key) ?? 0) + 1);
+    }
+  }
+  return {
+    subjects: report.subjects.length,
+    usable: usable.length,
+    excluded: report.subjects.length - usable.length,
+    errors: report.findings.filter((f) => f.severity === 'error').length,
+    warnings: report.findings.filter((f) => f.severity === 'warning').length,
+    groups: [...groups].map(([group, count]) => ({ group, count })),
+  };
+}

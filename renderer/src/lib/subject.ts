@@ -1,0 +1,298 @@
+/** The Subject view's logic: barcode and diagram with one shared selection, heatmap, cycle on the node layout. */
+import type { NodeInfo, SubjectResult } from '../../../electron/api.ts';
+import { baseLayout, type Figure, type Trace } from './figure.ts';
+import type { NodeLayout } from './layout.ts';
+
+export interface IntervalRow {
+  /** Stable id across both plots: `${dim}:${k}`, k the position in the subject's H_dim diagram. */
+  id: string;
+  dim: number;
+  k: number;
+  birth: number;
+  death: number | null;
+  persistence: number | null;
+}
+
+const DIM_COLOURS = ['#0072B2', '#D55E00', '#009E73'];
+
+export function intervals(s: SubjectResult): IntervalRow[] {
+  return s.diagrams.flatMap((d, dim) =>
+    d.map(([birth, death], k) => ({
+      id: `${dim}:${k}`,
+      dim,
+      k,
+      birth,
+      death,
+      persistence: death === null ? null : death - birth,
+    })),
+  );
+}
+
+/** Where a class that never dies is drawn: a little above the largest finite value (marked ∞). */
+export function infinityLine(rows: IntervalRow[]): number {
+  const finite = rows.flatMap((r) => (r.death === null ? [r.birth] : [r.birth, r.death]));
+  const top = finite.length ? Math.max(...finite) : 1;
+  return top > 0 ? top * 1.08 : 1;
+}
+
+/** The longest intervals of dimension ≥ 1 first: the ones worth looking at. */
+export function notableIntervals(rows: IntervalRow[], limit = 20): IntervalRow[] {
+  return rows
+    .filter((r) => r.dim >= 1)
+    .sort((a, b) => (b.persistence ?? Infinity) - (a.persistence ?? Infinity))
+    .slice(0, limit);
+}
+
+/**
+ * Barcode: every interval a horizontal bar, grouped by dimension, longest first within it
+ * (Ghrist 2008, "Barcodes: the persistent topology of data", Bull. AMS 45(1)).
+ */
+export function barcodeFigure(rows: IntervalRow[], selected: string | null): Figure {
+  const inf = infinityLine(rows);
+  const data: Trace[] = [];
+  let y = 0;
+  const dims = [...new Set(rows.map((r) => r.dim))].sort();
+  const selectedBar: { x: number[]; y: number } = { x: [], y: -1 };
+  for (const dim of dims) {
+    const mine = rows
+      .filter((r) => r.dim === dim)
+      .sort((a, b) => (b.death ?? inf) - b.birth - ((a.death ?? inf) - a.birth));
+    const xs: Array<number | null> = [];
+    const ys: Array<number | null> = [];
+    const ids: Array<string | null> = [];
+    for (const r of mine) {
+      xs.push(r.birth, r.death ?? inf, null);
+      ys.push(y, y, null);
+      ids.push(r.id, r.id, null);
+      if (r.id === selected) {
+        selectedBar.x = [r.birth, r.death ?? inf];
+        selectedBar.y = y;
+      }
+      y++;
+    }
+    data.push({
+      type: 'scatter',
+      mode: 'lines+markers',
+      name: `H${dim}`,
+      x: xs,
+      y: ys,
+      customdata: ids,
+      line: { color: DIM_COLOURS[dim % 3], width: 3 },
+      marker: { size: 4, color: DIM_COLOURS[dim % 3] },
+      hovertemplate: `H${dim} [%{x:.3f}]<extra></extra>`,
+    });
+    y += 2;
+  }
+  if (selectedBar.y >= 0) {
+    data.push({
+      type: 'scatter',
+      mode: 'lines',
+      name: 'selected',
+      x: selectedBar.x,
+      y: [selectedBar.y, selectedBar.y],
+      line: { color: '#000', width: 7 },
+      hoverinfo: 'skip',
+    });
+  }
+  return {
+    name: 'barcode',
+    data,
+    layout: baseLayout('Barcode', {
+      xaxis: { title: { text: 'filtration value' } },
+      yaxis: { visible: false },
+      legend: { orientation: 'h', y: -0.2 },
+      shapes: [
+        {
+          type: 'line',
+          x0: inf,
+          x1: inf,
+          y0: 0,
+          y1: 1,
+          yref: 'paper',
+          line: { dash: 'dot', color: '#999', width: 1 },
+        },
+      ],
+    }),
+  };
+}
+
+/** Persistence diagram: (birth, death) per interval above the diagonal; classes that never die on the ∞ line. */
+export function diagramFigure(rows: IntervalRow[], selected: string | null): Figure {
+  const inf = infinityLine(rows);
+  const dims = [...new Set(rows.map((r) => r.dim))].sort();
+  const data: Trace[] = [
+    {
+      type: 'scatter',
+      mode: 'lines',
+      x: [0, inf],
+      y: [0, inf],
+      line: { color: '#999', width: 1 },
+      hoverinfo: 'skip',
+      showlegend: false,
+    },
+  ];
+  for (const dim of dims) {
+    const mine = rows.filter((r) => r.dim === dim);
+    data.push({
+      type: 'scatter',
+      mode: 'markers',
+      name: `H${dim}`,
+      x: mine.map((r) => r.birth),
+      y: mine.map((r) => r.death ?? inf),
+      customdata: mine.map((r) => r.id),
+      marker: {
+        size: 8,
+        color: DIM_COLOURS[dim % 3],
+        symbol: mine.map((r) => (r.death === null ? 'triangle-up' : 'circle')),
+        line: { color: '#fff', width: 1 },
+      },
+      hovertemplate: `H${dim} (%{x:.3f}, %{y:.3f})<extra></extra>`,
+    });
+  }
+  const sel = rows.find((r) => r.id === selected);
+  if (sel) {
+    data.push({
+      type: 'scatter',
+      mode: 'markers',
+      name: 'selected',
+      x: [sel.birth],
+      y: [sel.death ?? inf],
+      marker: { size: 16, color: 'rgba(0,0,0,0)', line: { color: '#000', width: 3 } },
+      hoverinfo: 'skip',
+    });
+  }
+  return {
+    name: 'persistence-diagram',
+    data,
+    layout: baseLayout('Persistence diagram', {
+      xaxis: { title: { text: 'birth' }, range: [0, inf * 1.03] },
+      yaxis: { title: { text: 'death' }, range: [0, inf * 1.03], scaleanchor: 'x' },
+      legend: { orientation: 'h', y: -0.2 },
+      annotations: [{ x: 0, y: inf, text: '∞', showarrow: false, xanchor: 'right', font: { size: 14 } }],
+    }),
+  };
+}
+
+/** The interval id a Plotly click reports through customdata, if any. */
+export function clickedInterval(point: { customdata?: unknown } | undefined): string | null {
+  const id = point?.customdata;
+  return typeof id === 'string' && /^\d+:\d+$/.test(id) ? id : null;
+}
+
+/** The representative of an H1 interval (matched by birth and death, which the engine pairs exactly). */
+export function representativeOf(s: SubjectResult, row: IntervalRow | undefined) {
+  if (!row || row.dim !== 1) return null;
+  return s.representatives.find((r) => r.birth === row.birth && r.death === row.death) ?? null;
+}
+
+export function heatmapFigure(s: SubjectResult, nodes: NodeInfo[]): Figure {
+  const z: number[][] = [];
+  let maxAbs = 0;
+  for (let i = 0; i < s.n; i++) {
+    const row = s.matrix.slice(i * s.n, (i + 1) * s.n);
+    for (let j = 0; j < s.n; j++)
+      if (i !== j && Number.isFinite(row[j])) maxAbs = Math.max(maxAbs, Math.abs(row[j]));
+    z.push(row);
+  }
+  const labels =
+    nodes.length === s.n ? nodes.map((n) => n.label) : Array.from({ length: s.n }, (_, i) => String(i + 1));
+  return {
+    name: `matrix-${s.id}`,
+    data: [
+      {
+        type: 'heatmap',
+        z,
+        x: labels,
+        y: labels,
+        colorscale: 'RdBu',
+        reversescale: true,
+        zmin: -maxAbs,
+        zmax: maxAbs,
+        hovertemplate: '%{y} – %{x}: %{z:.3f}<extra></extra>',
+      },
+    ],
+    layout: baseLayout(`Matrix of ${s.id}`, {
+      yaxis: { autorange: 'reversed', scaleanchor: 'x', showticklabels: s.n <= 40 },
+      xaxis: { showticklabels: s.n <= 40 },
+      height: 460,
+    }),
+  };
+}
+
+/** The selected cycle drawn on the node layout: all nodes faint, the cycle's edges and nodes bold. */
+export function cycleFigure(
+  layout: NodeLayout,
+  rep: { edges: Array<[number, number]>; nodes: number[] } | null,
+  title: string,
+): Figure {
+  const at = new Map(layout.nodes.map((n) => [n.index, n]));
+  const ex: Array<number | null> = [];
+  const ey: Array<number | null> = [];
+  for (const [i, j] of rep?.edges ?? []) {
+    const a = at.get(i);
+    const b = at.get(j);
+    if (!a || !b) continue;
+    ex.push(a.x, b.x, null);
+    ey.push(a.y, b.y, null);
+  }
+  const inCycle = new Set(rep?.nodes ?? []);
+  const cycleNodes = layout.nodes.filter((n) => inCycle.has(n.index));
+  const circle = layout.kind === 'circle';
+  return {
+    name: `cycle-${layout.kind}`,
+    data: [
+      {
+        type: 'scatter',
+        mode: 'markers',
+        x: layout.nodes.map((n) => n.x),
+        y: layout.nodes.map((n) => n.y),
+        text: layout.nodes.map((n) => n.label),
+        marker: { size: 6, color: '#c8c8c8' },
+        hovertemplate: '%{text}<extra></extra>',
+        showlegend: false,
+      },
+      {
+        type: 'scatter',
+        mode: 'lines',
+        x: ex,
+        y: ey,
+        line: { color: '#D55E00', width: 3 },
+        hoverinfo: 'skip',
+        showlegend: false,
+      },
+      {
+        type: 'scatter',
+        mode: 'markers+text',
+        x: cycleNodes.map((n) => n.x),
+        y: cycleNodes.map((n) => n.y),
+        text: cycleNodes.map((n) => n.label),
+        textposition: 'top center',
+        marker: { size: 10, color: '#D55E00', line: { color: '#fff', width: 1 } },
+        hovertemplate: '%{text}<extra></extra>',
+        showlegend: false,
+      },
+    ],
+    layout: baseLayout(title, {
+      xaxis: { title: { text: layout.xTitle }, visible: !circle, zeroline: false },
+      yaxis: { title: { text: layout.yTitle }, visible: !circle, zeroline: false, scaleanchor: 'x' },
+      height: 360,
+    }),
+  };
+}
+
+/** The subject's node scores as table rows: node, label, network, one value per measure. */
+export function nodeScoreRows(
+  s: SubjectResult,
+  nodes: NodeInfo[],
+): { columns: string[]; rows: Array<Array<string | number | null>> } {
+  const measures = Object.keys(s.nodeScores);
+  return {
+    columns: ['node', 'label', 'network', ...measures],
+    rows: Array.from({ length: s.n }, (_, i) => [
+      i,
+      nodes[i]?.label ?? String(i + 1),
+      nodes[i]?.network ?? null,
+      ...measures.map((m) => s.nodeScores[m][i] ?? null),
+    ]),
+  };
+}

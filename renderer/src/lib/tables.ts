@@ -1,0 +1,49 @@
+/** Reading the result tables by column name, and writing them back out as text. */
+import type { Table } from '../../../electron/api.ts';
+
+export type Cell = string | number | null;
+
+/** The first of the candidate names the table has (case-insensitive), or null. */
+export function findColumn(table: Table, candidates: string[]): string | null {
+  const lower = table.columns.map((c) => c.toLowerCase());
+  for (const c of candidates) {
+    const i = lower.indexOf(c.toLowerCase());
+    if (i >= 0) return table.columns[i];
+  }
+  return null;
+}
+
+export function column(table: Table, name: string): Cell[] {
+  const i = table.columns.indexOf(name);
+  if (i < 0) return [];
+  return table.rows.map((r) => r[i] ?? null);
+}
+
+/** Rows as objects, column → value. */
+export function records(table: Table): Array<Record<string, Cell>> {
+  return table.rows.map((r) => Object.fromEntries(table.columns.map((c, i) => [c, r[i] ?? null])));
+}
+
+export function asNumber(v: Cell): number | null {
+  if (typeof v === 'number') return Number.isFinite(v) ? v : null;
+  if (typeof v === 'string' && v.trim() !== '' && v !== 'n/a') {
+    const x = Number(v);
+    return Number.isFinite(x) ? x : null;
+  }
+  return null;
+}
+
+function cellText(v: Cell, sep: string): string {
+  if (v === null) return 'n/a';
+  if (typeof v === 'number') return v === Infinity ? 'inf' : v === -Infinity ? '-inf' : String(v);
+  // RFC 4180 quoting for CSV; TSV cells cannot hold tabs or newlines, so they are replaced.
+  if (sep === '\t') return v.replace(/[\t\r\n]+/g, ' ');
+  return /[",\r\n]/.test(v) ? `"${v.replace(/"/g, '""')}"` : v;
+}
+
+/** The table as TSV or CSV text, missing values as 'n/a' (as the service writes them). */
+export function tableText(table: Table, format: 'tsv' | 'csv' = 'tsv'): string {
+  const sep = format === 'tsv' ? '\t' : ',';
+  const line = (cells: Cell[]) => cells.map((c) => cellText(c, sep)).join(sep);
+  return [line(table.columns), ...table.rows.map(line)].join('\n') + '\n';
+}

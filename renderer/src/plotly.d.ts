@@ -1,0 +1,4 @@
+declare module 'plotly.js-dist' {
+  const Plotly: unknown;
+  export default Plotly;
+}
