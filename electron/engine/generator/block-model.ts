@@ -72,8 +72,9 @@ export interface FactorModel {
 /**
  * A planted group effect. 'bridge': each node i = nodes[k] loads with `share` on the factor of
  * module targets[k], raising its correlation with that module by (w − c)√share. 'isolate': each
- * node moves `share` of its between-module variance into noise, lowering its correlation with
- * other modules by the factor (1 − share) (and with its own module by share·c).
+ * node moves `share` of its between-module variance into noise, so its correlation with a node of
+ * another module falls by the factor √(1 − share) (and with its own module from w to
+ * w − c + c√(1 − share)).
  */
 export type PlantedEffect =
   | { kind: 'bridge'; nodes: number[]; targets: number[]; share: number }
