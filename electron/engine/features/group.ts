@@ -18,7 +18,7 @@ export const FISHER_CLAMP = 1 - 1e-12;
  *   plain (distances, weights): the arithmetic mean, diagonal included.
  *
  *   groupMeanMatrix([{n: 2, values: [1, 0.5, 0.5, 1]}, {n: 2, values: [1, 0.9, 0.9, 1]}], 'correlation')
- *   → off-diagonal tanh((atanh 0.5 + atanh 0.9) / 2) ≈ 0.7508
+ *   → off-diagonal tanh((atanh 0.5 + atanh 0.9) / 2) ≈ 0.7661
  */
 export function groupMeanMatrix(matrices: SquareMatrix[], kind: 'correlation' | 'plain'): SquareMatrix {
   if (matrices.length === 0) throw new MatrixError('group mean of no matrices');
