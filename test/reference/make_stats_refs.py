@@ -19,6 +19,7 @@ import gudhi.hera
 import numpy as np
 import pandas as pd
 import scipy
+import scipy.optimize
 import scipy.special
 import scipy.stats
 import statsmodels
@@ -158,6 +159,21 @@ def random_diagram(rng, k, scale=1.0, grid=None):
     return np.column_stack([b, d])
 
 
+def exact_wasserstein(A, B, p):
+    """A second, independent exact value: scipy's linear_sum_assignment on the diagonal-augmented cost matrix."""
+    n1, n2 = len(A), len(B)
+    n = n1 + n2
+    if n == 0:
+        return 0.0
+    C = np.zeros((n, n))
+    if n1 and n2:
+        C[:n1, :n2] = np.max(np.abs(A[:, None, :] - B[None, :, :]), axis=-1) ** p
+    C[:n1, n2:] = (((A[:, 1] - A[:, 0]) / 2) ** p)[:, None]
+    C[n1:, :n2] = (((B[:, 1] - B[:, 0]) / 2) ** p)[None, :]
+    r, c = scipy.optimize.linear_sum_assignment(C)
+    return float(C[r, c].sum() ** (1 / p))
+
+
 rng = np.random.default_rng(5)
 pairs = []
 sizes = [(0, 0), (0, 4), (3, 0), (1, 1), (5, 8), (12, 12), (40, 25), (80, 100), (150, 150)]
@@ -167,7 +183,10 @@ for k, (n1, n2) in enumerate(sizes):
     B = random_diagram(rng, n2, grid=grid)
     entry = {"a": A.tolist(), "b": B.tolist()}
     for p in (1, 2):
-        entry[f"w{p}"] = float(gudhi.hera.wasserstein_distance(A.reshape(-1, 2), B.reshape(-1, 2), order=p, internal_p=np.inf))
+        # delta is hera's relative error bound (default 0.01); taken tiny here so the reference is exact to ~1e-12.
+        entry[f"w{p}"] = float(gudhi.hera.wasserstein_distance(A.reshape(-1, 2), B.reshape(-1, 2), order=p,
+                                                               internal_p=np.inf, delta=1e-12))
+        entry[f"w{p}_lsa"] = exact_wasserstein(A.reshape(-1, 2), B.reshape(-1, 2), p)
     entry["bottleneck"] = float(gudhi.bottleneck_distance(A.reshape(-1, 2), B.reshape(-1, 2)))
     entry["bottleneck_exact"] = float(gudhi.bottleneck_distance(A.reshape(-1, 2), B.reshape(-1, 2), 0))
     for m in (10, 50):
@@ -183,14 +202,15 @@ inf_case = {
     "a": A.tolist() + [[0.0, None]],
     "b": B.tolist() + [[0.0, None], [0.3, None]],
     "clip": 2.5,
-    "w2_drop": float(gudhi.hera.wasserstein_distance(A, B, order=2, internal_p=np.inf)),
+    "w2_drop": float(gudhi.hera.wasserstein_distance(A, B, order=2, internal_p=np.inf, delta=1e-12)),
     "w2_clip": float(gudhi.hera.wasserstein_distance(
-        np.vstack([A, [[0.0, 2.5]]]), np.vstack([B, [[0.0, 2.5], [0.3, 2.5]]]), order=2, internal_p=np.inf)),
+        np.vstack([A, [[0.0, 2.5]]]), np.vstack([B, [[0.0, 2.5], [0.3, 2.5]]]), order=2, internal_p=np.inf,
+        delta=1e-12)),
     "bottleneck_clip": float(gudhi.bottleneck_distance(
         np.vstack([A, [[0.0, 2.5]]]), np.vstack([B, [[0.0, 2.5], [0.3, 2.5]]]), 0)),
 }
 dump("diagram_distances.json", {
-    "source": "gudhi.hera.wasserstein_distance(order=p, internal_p=inf); gudhi.bottleneck_distance (default e and e=0); "
+    "source": "gudhi.hera.wasserstein_distance(order=p, internal_p=inf, delta=1e-12); scipy linear_sum_assignment (w*_lsa); gudhi.bottleneck_distance (default e and e=0); "
               "gudhi.representations.SlicedWassersteinDistance(num_directions=M)",
     "pairs": pairs, "infinite": inf_case})
 
@@ -207,7 +227,8 @@ def classical_mds(D):
 X = rng.normal(0, 1, (25, 4)) * np.array([3, 2, 0.5, 0.1])
 De = np.sqrt(((X[:, None, :] - X[None, :, :]) ** 2).sum(-1))
 diags = [random_diagram(rng, int(rng.integers(5, 20))) for _ in range(15)]
-Dw = np.array([[gudhi.hera.wasserstein_distance(a, b, order=2, internal_p=np.inf) for b in diags] for a in diags])
+Dw = np.array([[gudhi.hera.wasserstein_distance(a, b, order=2, internal_p=np.inf, delta=1e-12) for b in diags]
+               for a in diags])
 Dw = (Dw + Dw.T) / 2
 mds = []
 for D in (De, Dw):

@@ -3,8 +3,8 @@
  * the group labels permuted (exactly when there are few distinct relabellings).
  *
  * Joint loss (Robinson & Turner 2017, "Hypothesis testing for topological data analysis",
- * J. Appl. Comput. Topol. 1): F = Σ_groups 1/(2 n_g (n_g − 1)) Σ_{i,j ∈ g} d_ij^q, the mean
- * within-group d^q summed over groups; small F means tight groups, so p = P(F* ≤ F). The paper
+ * J. Appl. Comput. Topol. 1): F = Σ_groups 1/(2 n_g (n_g − 1)) Σ_{i,j ∈ g} d_ij^q (ordered pairs),
+ * i.e. half the mean within-group d^q, summed over groups; small F means tight groups, so p = P(F* ≤ F). The paper
  * states it for two groups; summing over every group is the direct extension. q = 2 by default.
  *
  * PERMANOVA (Anderson 2001, Austral Ecology 26): with SS_T = (1/N) Σ_{i<j} d_ij² and
