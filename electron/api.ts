@@ -229,6 +229,16 @@ export interface OpenCohortRequest {
   dir: string;
   participants?: string;
   nodes?: string;
+  /** For .mat files: the variable that holds the matrix (needed when a file has several). */
+  variable?: string;
+  /** The files hold region time series (T × N), correlated per subject when loaded. */
+  timeSeries?: boolean;
+  /** Participants-table column naming each subject's file (relative to dir). Default: a column called matrix_file, file, filename or path. */
+  fileColumn?: string;
+  /** Only files whose name contains this text are matrices (e.g. '_connectome'). */
+  match?: string;
+  /** Overrides of the detected covariate kinds, column name → kind. */
+  columnKinds?: Record<string, 'numeric' | 'categorical'>;
 }
 
 export interface StartRunRequest {

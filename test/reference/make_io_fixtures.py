@@ -391,7 +391,7 @@ def malformed():
     buf = open(p('sub-26_conn.mat'), 'rb').read()
     open(p('sub-26_conn.mat'), 'wb').write(buf[: len(buf) - 60]); cases['sub-26'] = 'truncated'
     write_npy(p('sub-27_conn.npy'), np.arange(5.0), (1, 0)); cases['sub-27'] = 'bad-shape'
-    open(p('sub-28_conn.csv'), 'wb').write(bytes(range(256)) * 4); cases['sub-28'] = 'not-a-number'
+    open(p('sub-28_conn.csv'), 'wb').write(bytes(range(256)) * 4); cases['sub-28'] = 'bad-format'
     csv('sub-29_conn.csv', np.full((n, n), np.nan)); cases['sub-29'] = 'all-nan'
     write_text(p('sub-30_conn.tsv'), 'a\tb\tc\td\te\n'); cases['sub-30'] = 'empty-file'
     csv('sub-31_conn.csv', corr_matrix(n)); csv('sub-31_conn_copy.csv', corr_matrix(n)); cases['sub-31'] = 'several-matrices'
