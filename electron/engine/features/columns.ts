@@ -99,3 +99,18 @@ export function featureColumnNames(maxDim: number, levels: number): string[] {
   for (const { pattern } of FEATURE_COLUMNS) if (!pattern.includes('{d}')) names.push(pattern);
   return names;
 }
+
+/**
+ * Both lists as Markdown tables, for the README and the export folder's column notes.
+ *
+ *   columnsMarkdown() → '| feature column | meaning |\n| --- | --- |\n| `h{d}_count` | … |…'
+ */
+export function columnsMarkdown(): string {
+  const table = (head: string, rows: ColumnDoc[]): string =>
+    [
+      `| ${head} | meaning |`,
+      '| --- | --- |',
+      ...rows.map((r) => `| \`${r.pattern}\` | ${r.description} |`),
+    ].join('\n');
+  return `${table('feature column', FEATURE_COLUMNS)}\n\n${table('node measure', NODE_MEASURES)}\n`;
+}

@@ -62,3 +62,22 @@ export function cohortGrid(results: PersistenceResult[], points = 100): Float64A
   if (!Number.isFinite(lo) || lo > hi) lo = 0;
   return grid(lo, hi, points);
 }
+
+/**
+ * The grid an analysis uses: the user's range when the settings give one, else the cohort's
+ * filtration range (cohortGrid), with the settings' number of points.
+ *
+ *   analysisGrid(results, {gridPoints: 50, gridRange: [0, 1]}) → grid(0, 1, 50)
+ */
+export function analysisGrid(
+  results: PersistenceResult[],
+  settings: { gridPoints: number; gridRange: [number, number] | null },
+): Float64Array {
+  if (settings.gridRange) return grid(settings.gridRange[0], settings.gridRange[1], settings.gridPoints);
+  return cohortGrid(results, settings.gridPoints);
+}
+
+/** The cap the complex was truncated at, or ∞ when it was not (stopping at the enclosing radius loses nothing). */
+export function userCap(r: PersistenceResult): number {
+  return r.thresholdSource === 'distance-cap' || r.thresholdSource === 'density-cap' ? r.threshold : Infinity;
+}

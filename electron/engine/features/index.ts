@@ -14,3 +14,4 @@ export * from './networks.ts';
 export * from './group.ts';
 export * from './columns.ts';
 export * from './rows.ts';
+export * from './curves.ts';

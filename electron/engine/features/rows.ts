@@ -7,7 +7,7 @@ import type { DistanceMatrix, PersistenceResult } from '../types.ts';
 import { bettiArea } from './betti.ts';
 import { featureColumnNames } from './columns.ts';
 import { eulerArea } from './euler.ts';
-import { filtrationEnd } from './grid.ts';
+import { filtrationEnd, userCap } from './grid.ts';
 import { h0BirthComponentLifetime, h0JoinValue } from './h0-merge-tree.ts';
 import { h1Participation } from './h1-participation.ts';
 import { intervalStats } from './interval-stats.ts';
@@ -19,11 +19,6 @@ export type FeatureRow = Record<string, number | null>;
 export type FeatureSettings = Pick<AnalysisSettings, 'maxDim' | 'persistenceFloor' | 'landscapeLevels'>;
 
 const finiteOrNull = (x: number): number | null => (Number.isFinite(x) ? x : null);
-
-/** The cap the complex was truncated at, or ∞ when it was not (the enclosing radius loses nothing). */
-function userCap(r: PersistenceResult): number {
-  return r.thresholdSource === 'distance-cap' || r.thresholdSource === 'density-cap' ? r.threshold : Infinity;
-}
 
 /**
  * The subject's scalar features on the cohort grid, keyed by the names of featureColumnNames.
