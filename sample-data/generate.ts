@@ -1,7 +1,8 @@
 /**
  * Writes the bundled demo cohorts, byte for byte the same on every run:
  *
- *   npx tsx sample-data/generate.ts [outDir]      (outDir defaults to sample-data/)
+ *   npx tsx sample-data/generate.ts [outDir] [--force]   (outDir defaults to sample-data/; --force replaces
+ *                                                        files that exist with other content)
  *
  * rhythm-study/        an invented 8-week rhythm-training study: 40 subjects (training 20, waitlist 20),
  *                      60 regions in 6 networks, one sample correlation matrix per subject.
@@ -11,7 +12,7 @@
  * the training group carries a planted effect: four nodes each bridge to a second network,
  * forming a ring of cross-network coupling (see sample-data/README.md). Invented demo data.
  */
-import { mkdirSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { createRng, shuffle, type Rng } from '../electron/engine/random.ts';
@@ -271,10 +272,25 @@ export function sampleFiles(): Map<string, string | Uint8Array> {
   return files;
 }
 
-/** Writes every sample file under outDir (only these files; nothing else there is touched). */
-export function writeSampleData(outDir: string): string[] {
+/**
+ * Writes every sample file under outDir (only these files; nothing else there is touched). A file that
+ * exists with other content is someone's work or an older generation: refused unless `force`.
+ */
+export function writeSampleData(outDir: string, force = false): string[] {
+  const files = sampleFiles();
+  const differing = [...files].filter(([rel, content]) => {
+    const path = join(outDir, rel);
+    return existsSync(path) && !readFileSync(path).equals(Buffer.from(content));
+  });
+  if (differing.length > 0 && !force) {
+    const names = differing.map(([rel]) => rel);
+    throw new Error(
+      `${outDir}: ${names.length} file(s) exist with other content (${names.slice(0, 3).join(', ')}` +
+        `${names.length > 3 ? ', …' : ''}); rerun with --force to replace them`,
+    );
+  }
   const written: string[] = [];
-  for (const [rel, content] of sampleFiles()) {
+  for (const [rel, content] of files) {
     const path = join(outDir, rel);
     mkdirSync(join(path, '..'), { recursive: true });
     writeFileSync(path, content);
@@ -284,7 +300,14 @@ export function writeSampleData(outDir: string): string[] {
 }
 
 if (process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1]) {
-  const outDir = process.argv[2] ?? join(fileURLToPath(import.meta.url), '..');
-  const written = writeSampleData(outDir);
-  console.log(`wrote ${written.length} files under ${outDir}`);
+  const args = process.argv.slice(2);
+  const force = args.includes('--force');
+  const outDir = args.find((a) => a !== '--force') ?? join(fileURLToPath(import.meta.url), '..');
+  try {
+    const written = writeSampleData(outDir, force);
+    console.log(`wrote ${written.length} files under ${outDir}`);
+  } catch (e) {
+    console.error(`sample-data/generate.ts: ${e instanceof Error ? e.message : String(e)}`);
+    process.exit(1);
+  }
 }

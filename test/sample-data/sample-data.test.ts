@@ -1,4 +1,4 @@
-import { mkdtempSync, readdirSync, readFileSync, rmSync, statSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -70,6 +70,26 @@ describe('regeneration', () => {
     expect(written).toEqual(committed);
     for (const rel of written) {
       expect(readFileSync(join(tmp, rel)).equals(readFileSync(join(SAMPLE, rel))), rel).toBe(true);
+    }
+  });
+
+  it('refuses to replace a file with other content unless forced', () => {
+    const other = mkdtempSync(join(tmpdir(), 'loopwise-sample-'));
+    try {
+      mkdirSync(join(other, STUDY));
+      writeFileSync(join(other, STUDY, 'participants.tsv'), 'my own table\n');
+      expect(() => writeSampleData(other)).toThrow(/participants\.tsv.*--force/);
+      expect(readFileSync(join(other, STUDY, 'participants.tsv'), 'utf8')).toBe('my own table\n');
+      writeSampleData(other, true);
+      expect(
+        readFileSync(join(other, STUDY, 'participants.tsv')).equals(
+          readFileSync(join(study, 'participants.tsv')),
+        ),
+      ).toBe(true);
+      // Identical files are no obstacle: a second run succeeds without force.
+      expect(writeSampleData(other).length).toBeGreaterThan(50);
+    } finally {
+      rmSync(other, { recursive: true, force: true });
     }
   });
 
