@@ -6,8 +6,11 @@
  *     i.e. inf{t : v lies in the largest component at every s ≥ t}; the largest component is the one
  *     with most nodes, ties to the one holding the smaller node index. NaN for nodes outside the
  *     final largest component (a capped filtration can end disconnected). Early joiners are the
- *     core the giant component grows from (percolation on a weighted graph; the order in which
- *     nodes join the giant component is common practice in network percolation analyses).
+ *     core the giant component grows from: the edge filtration read as bond percolation
+ *     (D. Callaway, M. Newman, S. Strogatz, D. Watts (2000), Network robustness and fragility:
+ *     percolation on random graphs, Phys Rev Lett 85) over the single-linkage dendrogram of brain
+ *     networks (H. Lee, H. Kang, M. K. Chung, B.-N. Kim, D. S. Lee (2012), Persistent brain network
+ *     homology from the perspective of dendrogram, IEEE Trans Med Imaging 31) — references from memory.
  *
  *   h0_birth_component_lifetime(v): the lifetime of the H0 class born at v, i.e. the value at which
  *     the component whose elder (smallest index) is v is absorbed — the H0 interval [0, death) that
@@ -18,6 +21,9 @@
 import type { MergeEvent } from '../types.ts';
 
 /**
+ * h0_join_value of every node, by replaying the merge tree (Lee et al. 2012's dendrogram) and
+ * tracking the largest component (Callaway et al. 2000's giant component).
+ *
  *   h0JoinValue(3, [{value: 1, edge: [2, 1], survivor: 1, absorbed: 2}, {value: 2, edge: [1, 0], survivor: 0, absorbed: 1}])
  *   → [2, 1, 1]   (nodes 1, 2 form the largest component at 1; node 0 joins it at 2)
  */
@@ -71,6 +77,9 @@ export function h0JoinValue(n: number, mergeTree: MergeEvent[]): Float64Array {
 }
 
 /**
+ * h0_birth_component_lifetime of every node: the elder rule's H0 interval of the node
+ * (Edelsbrunner & Harer 2010, VII.1), survivors clipped at `end`.
+ *
  *   h0BirthComponentLifetime(3, [{value: 1, …, survivor: 1, absorbed: 2}, {value: 2, …, survivor: 0, absorbed: 1}], 5)
  *   → [5, 2, 1]
  */

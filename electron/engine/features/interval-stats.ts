@@ -51,7 +51,7 @@ function mean(values: ArrayLike<number>): number {
  * Persistent entropy E = −Σ (lᵢ/L) ln(lᵢ/L), L = Σ lᵢ, over the finite intervals of positive length
  * (H. Chintakunta, T. Gentimis, R. Gonzalez-Diaz, M.-J. Jimenez, H. Krim (2015), An entropy-based
  * persistence barcode, Pattern Recognition 48; M. Rucco et al. (2016), Characterisation of the
- * idiotypic immune network through persistent entropy).
+ * idiotypic immune network through persistent entropy, Proc. ECCS 2014 — reference from memory).
  *
  *   persistentEntropy([{birth: 0, death: 1}, {birth: 0, death: 1}]) → ln 2
  */
