@@ -19,6 +19,7 @@
  * (diameter ascending, index descending); every result is a function of it, so it is deterministic.
  */
 import { EntryHeap } from './heap.ts';
+import { IndexMap } from './index-map.ts';
 import type {
   CycleRepresentative,
   DistanceMatrix,
@@ -253,8 +254,8 @@ class Context {
         }
       }
     }
-    const order = sortOrder(diam, idx, true);
-    return { count, idx: permute(idx, order), diam: permute(diam, order) };
+    const sorted = filtrationSorted(idx, diam, true, (n * (n - 1)) / 2);
+    return { count, idx: sorted.idx, diam: sorted.diam };
   }
 
   /**
@@ -262,7 +263,7 @@ class Context {
    * reduction (clearing: their columns would reduce to zero), in reverse filtration order.
    * Each simplex is reached once, from the facet without its largest vertex.
    */
-  simplicesAbove(dim: number, pivots: Map<number, number>): { idx: Float64Array; diam: Float64Array } {
+  simplicesAbove(dim: number, pivots: IndexMap): { idx: Float64Array; diam: Float64Array } {
     const { n, dist, threshold } = this;
     const k = dim + 1; // vertices of a dim-simplex
     const idxOut: number[] = [];
@@ -292,8 +293,7 @@ class Context {
     enumerate(0, 0, 0, 0);
     const idx = Float64Array.from(idxOut);
     const diam = Float64Array.from(diamOut);
-    const order = sortOrder(diam, idx, false);
-    return { idx: permute(idx, order), diam: permute(diam, order) };
+    return filtrationSorted(idx, diam, false, this.choose(n, k + 1));
   }
 }
 
@@ -303,19 +303,56 @@ interface EdgeList {
   diam: Float64Array;
 }
 
-/** Ascending: (diam ↑, idx ↓), the filtration order. Descending: its reverse (diam ↓, idx ↑). */
-function sortOrder(diam: Float64Array, idx: Float64Array, ascending: boolean): Uint32Array {
-  const order = new Uint32Array(diam.length);
-  for (let i = 0; i < order.length; i++) order[i] = i;
-  const s = ascending ? 1 : -1;
-  order.sort((a, b) => s * (diam[a] - diam[b] || idx[b] - idx[a]));
-  return order;
-}
-
-function permute(a: Float64Array, order: Uint32Array): Float64Array {
-  const out = new Float64Array(a.length);
-  for (let i = 0; i < order.length; i++) out[i] = a[order[i]];
-  return out;
+/**
+ * Sorts simplices into filtration order (diam ↑, idx ↓), or its reverse (diam ↓, idx ↑).
+ * Every diameter is an edge length, so it is replaced by its rank among the sorted distinct
+ * edge lengths; rank and index then pack exactly into one double, rank · M + (M − 1 − index) with
+ * M = the number of possible indices (below 2^53 for any n this engine takes), and the native
+ * typed-array sort orders the keys without a comparator callback.
+ */
+function filtrationSorted(
+  idx: Float64Array,
+  diam: Float64Array,
+  ascending: boolean,
+  maxIndex: number,
+): { idx: Float64Array; diam: Float64Array } {
+  const count = diam.length;
+  const values = Float64Array.from(diam).sort();
+  let distinct = 0;
+  for (let i = 0; i < count; i++) if (i === 0 || values[i] !== values[i - 1]) values[distinct++] = values[i];
+  const M = maxIndex + 1;
+  const outIdx = new Float64Array(count);
+  const outDiam = new Float64Array(count);
+  if (distinct * M > Number.MAX_SAFE_INTEGER) {
+    const order = Array.from({ length: count }, (_, i) => i);
+    order.sort((a, b) => diam[a] - diam[b] || idx[b] - idx[a]);
+    if (!ascending) order.reverse();
+    for (let i = 0; i < count; i++) {
+      outIdx[i] = idx[order[i]];
+      outDiam[i] = diam[order[i]];
+    }
+    return { idx: outIdx, diam: outDiam };
+  }
+  const keys = new Float64Array(count);
+  for (let i = 0; i < count; i++) {
+    let lo = 0;
+    let hi = distinct - 1;
+    const x = diam[i];
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1;
+      if (values[mid] < x) lo = mid + 1;
+      else hi = mid;
+    }
+    keys[i] = lo * M + (maxIndex - idx[i]);
+  }
+  keys.sort();
+  for (let i = 0; i < count; i++) {
+    const key = keys[ascending ? i : count - 1 - i];
+    const rank = Math.floor(key / M);
+    outIdx[i] = maxIndex - (key - rank * M);
+    outDiam[i] = values[rank];
+  }
+  return { idx: outIdx, diam: outDiam };
 }
 
 interface UnionFindResult {
@@ -394,10 +431,10 @@ function reduceCohomology(
   dim: number,
   colIdx: Float64Array,
   colDiam: Float64Array,
-): { pairs: PairList; pivotOf: Map<number, number>; apparent: number } {
+): { pairs: PairList; pivotOf: IndexMap; apparent: number } {
   const { n, dist, threshold } = ctx;
   const k = dim + 1; // vertices of a column simplex
-  const pivotOf = new Map<number, number>(); // pivot (coface index) → column position
+  const pivotOf = new IndexMap(colIdx.length); // pivot (coface index) → column position
   // Stored reductions: for column c, the simplices added to it (besides itself), as a slice of vStore.
   const vStart = new Int32Array(colIdx.length).fill(-1);
   const vLen = new Int32Array(colIdx.length);
@@ -489,7 +526,7 @@ function reduceCohomology(
     while (heap.settle()) {
       const p = heap.topIndex();
       const other = pivotOf.get(p);
-      if (other === undefined) {
+      if (other === -1) {
         pivotOf.set(p, c);
         pairs.count++;
         pairs.birthIdx.push(sIdx);
@@ -571,9 +608,9 @@ function cycleRepresentatives(
 ): CycleRepresentative[] {
   const { n, dist } = ctx;
   // partner: birth edge → death triangle, for every pair of dimension 1 (zero length included).
-  const deathOfEdge = new Map<number, number>();
+  const deathOfEdge = new Float64Array((n * (n - 1)) / 2).fill(-1);
   for (let p = 0; p < pairs.count; p++) {
-    if (pairs.deathIdx[p] >= 0) deathOfEdge.set(pairs.birthIdx[p], pairs.deathIdx[p]);
+    if (pairs.deathIdx[p] >= 0) deathOfEdge[pairs.birthIdx[p]] = pairs.deathIdx[p];
   }
   const memo = new Map<number, Float64Array>(); // triangle → reduced column (edge indices)
   const heaps: EntryHeap[] = [];
@@ -612,9 +649,8 @@ function cycleRepresentatives(
     while (heap.settle()) {
       const low = -heap.topIndex();
       if (low === partner) break;
-      const earlier = deathOfEdge.get(low);
-      if (earlier === undefined)
-        throw new Error(`internal: edge ${low} has no partner while reducing triangle ${tri}`);
+      const earlier = deathOfEdge[low];
+      if (earlier < 0) throw new Error(`internal: edge ${low} has no partner while reducing triangle ${tri}`);
       const col = reduced(earlier, low, depth + 1);
       for (let t = 0; t < col.length; t++) heap.push(-edgeDiam(col[t]), -col[t]);
       reducedAny = true;
