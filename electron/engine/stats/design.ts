@@ -137,6 +137,9 @@ export function buildDesign(subjects: DesignSubject[], spec: DesignSpec): Design
       const mean = x.reduce((a, b) => a + b, 0) / n;
       // Centring leaves every group contrast unchanged and keeps the columns well conditioned.
       for (let i = 0; i < n; i++) x[i] -= mean;
+      if (x.every((v) => Math.abs(v) <= 1e-12 * Math.max(1, Math.abs(mean)))) {
+        throw new DesignError(`covariate '${c}' takes a single value (${mean}) among usable subjects`);
+      }
       columnNames.push(c);
       columns.push(x);
     } else {
@@ -215,15 +218,10 @@ function checkCollinearity(
   const base = columns.slice(0, groupColumns);
   for (const c of covs) {
     const own = columns.slice(c.from, c.to);
-    // The covariate carries nothing beyond group membership…
+    // Dependence of the set {1, group dummies, covariate columns} covers both a covariate that carries
+    // nothing beyond group membership and one that determines it (e.g. a site nested within group).
     if (orthonormalize([...base, ...own]).dropped.length > 0) {
       throw new DesignError(`covariate '${c.name}' is collinear with group '${groupColumn}'`);
-    }
-    // …or group membership is determined by the covariate (e.g. site nested within group).
-    if (orthonormalize([columns[0], ...own, ...base.slice(1)]).dropped.length > 0) {
-      throw new DesignError(
-        `covariate '${c.name}' is collinear with group '${groupColumn}' (it determines group membership)`,
-      );
     }
   }
   const all = orthonormalize(columns);

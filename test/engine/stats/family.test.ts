@@ -1,0 +1,121 @@
+// A family through to stats.tsv rows, and diagram tests through to diagram-tests.tsv rows.
+import { describe, expect, it } from 'vitest';
+import { createRng } from '../../../electron/engine/random.ts';
+import { buildDesign } from '../../../electron/engine/stats/design.ts';
+import { diagramDistanceMatrix } from '../../../electron/engine/stats/diagram-distance.ts';
+import { permanova } from '../../../electron/engine/stats/diagram-tests.ts';
+import { hedgesG } from '../../../electron/engine/stats/effect-size.ts';
+import { testFamily, type FeatureFamily } from '../../../electron/engine/stats/family.ts';
+import { bhQValues } from '../../../electron/engine/stats/multiple.ts';
+import {
+  diagramTestsTable,
+  DIAGRAM_TEST_COLUMNS,
+  statsTable,
+  STATS_COLUMNS,
+} from '../../../electron/engine/stats/tables.ts';
+
+const rng = createRng(12);
+const n = 18;
+const subjects = Array.from({ length: n }, (_, i) => ({
+  id: `sub-${i}`,
+  covariates: { dx: i % 3 === 0 ? 'patient' : i % 3 === 1 ? 'control' : 'sibling', age: 20 + ((i * 7) % 30) },
+}));
+// The family lists subjects in another order than the participants table.
+const order = [...subjects.map((s) => s.id)].reverse();
+const family: FeatureFamily = {
+  name: 'betti1-curve',
+  subjects: order,
+  features: Array.from({ length: 6 }, (_, j) => ({
+    feature: 'betti1',
+    nodeOrPoint: j * 0.1,
+    values: order.map(
+      (id) => (subjects.find((s) => s.id === id)!.covariates.dx === 'patient' ? j : 0) + rng.next(),
+    ),
+  })),
+};
+
+describe('testFamily and stats.tsv', () => {
+  const design = buildDesign(subjects, {
+    groupColumn: 'dx',
+    covariates: ['age'],
+    contrasts: [{ kind: 'pair', a: 'patient', b: 'control' }, { kind: 'all-levels' }],
+  });
+  const results = design.contrasts.map((c) =>
+    testFamily(design, c, family, { seed: 3, permutations: 499, bootstrap: 300 }),
+  );
+  const { table, warnings } = statsTable(results);
+
+  it('one row per feature and contrast, with family, contrast, df, seed and permutation count', () => {
+    expect(table.columns).toEqual(STATS_COLUMNS);
+    expect(table.rows).toHaveLength(12);
+    const col = (name: string) => table.columns.indexOf(name);
+    for (const row of table.rows) {
+      expect(row[col('family')]).toBe('betti1-curve');
+      expect(row[col('seed')]).toBe(3);
+      expect(row[col('permutations')]).toBe(499);
+      expect(row[col('permutation_mode')]).toBe('random');
+      expect(row[col('scheme')]).toBe('freedman-lane');
+      expect(row[col('df')]).toBe(n - 4);
+    }
+    expect(table.rows[0][col('contrast')]).toBe('patient - control');
+    expect(table.rows[0][col('test')]).toBe('t');
+    expect(table.rows[0][col('n_per_group')]).toBe('patient:6 control:6');
+    expect(table.rows[6][col('test')]).toBe('F');
+    expect(table.rows[6][col('df_num')]).toBe(2);
+    expect(table.rows[6][col('effect_kind')]).toBe('partial_eta_squared');
+    expect(table.rows[6][col('effect_low')]).toBeNull();
+    expect(table.rows[6][col('n_per_group')]).toBe('control:6 patient:6 sibling:6');
+    expect(warnings).toEqual([]);
+  });
+
+  it('q is BH over the family, g is computed on the two groups as aligned by id', () => {
+    const p = results[0].permutation.pUncorrected;
+    expect(Array.from(results[0].qFdr)).toEqual(Array.from(bhQValues(p)));
+    const col = table.columns.indexOf('effect_size');
+    family.features.forEach((f, j) => {
+      const byGroup = (g: string) =>
+        order.flatMap((id, i) =>
+          subjects.find((s) => s.id === id)!.covariates.dx === g ? [f.values[i] as number] : [],
+        );
+      expect(table.rows[j][col]).toBeCloseTo(hedgesG(byGroup('patient'), byGroup('control')), 12);
+    });
+    // Feature 0 has no group effect by construction, feature 5 a large one.
+    expect(results[0].permutation.pFwer[5]).toBeLessThan(0.01);
+  });
+
+  it('a subject of the design missing from the family is a clear error', () => {
+    const partial = { ...family, subjects: family.subjects.slice(1), features: [] };
+    expect(() => testFamily(design, design.contrasts[0], partial, { seed: 1 })).toThrow(
+      /family 'betti1-curve' has no values for subject 'sub-17'/,
+    );
+  });
+});
+
+describe('diagram-tests.tsv', () => {
+  it('rows carry metric, test, p, permutations, seed and the few-relabellings warning', () => {
+    const diagrams = Array.from({ length: 4 }, (_, i) => [
+      [0, 1 + i] as [number, number],
+      [0.2, 0.5] as [number, number],
+    ]);
+    const d = diagramDistanceMatrix(diagrams, { kind: 'wasserstein', p: 2 });
+    const res = permanova(d, Int32Array.of(0, 0, 1, 1), { seed: 4, permutations: 100 });
+    const table = diagramTestsTable([
+      {
+        family: 'H1',
+        metric: 'wasserstein-2',
+        result: res,
+        groupSizes: [
+          { level: 'a', n: 2 },
+          { level: 'b', n: 2 },
+        ],
+      },
+    ]);
+    expect(table.columns).toEqual(DIAGRAM_TEST_COLUMNS);
+    expect(table.rows[0].slice(0, 3)).toEqual(['H1', 'wasserstein-2', 'permanova']);
+    const col = (name: string) => table.columns.indexOf(name);
+    expect(table.rows[0][col('permutations')]).toBe(6);
+    expect(table.rows[0][col('permutation_mode')]).toBe('exact');
+    expect(table.rows[0][col('seed')]).toBe(4);
+    expect(table.rows[0][col('warning')]).toMatch(/smallest attainable p is 0\.167/);
+  });
+});
