@@ -20,6 +20,10 @@ const COMMANDS: Record<string, { run: Command; summary: string }> = {
   },
   analyze: { run: analyzeCommand, summary: 'persistence of every subject of a cohort, cached and resumable' },
   merge: { run: mergeCommand, summary: 'combine the shards of a cohort run (analyze --shard K/M)' },
+  validate: {
+    run: (a, io) => import('./cli/validate.ts').then((m) => m.validateCommand(a, io)),
+    summary: 'check a cohort and print its QC report',
+  },
 };
 
 export const USAGE = `usage: loopwise <command> [options]

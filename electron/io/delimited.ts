@@ -146,7 +146,12 @@ class RowSink {
     if (r0.length > 1 && r0.length === w + 1 && r0[r0.length - 1].trim() === '') r0 = r0.slice(0, -1);
     if (nrows === 0) w = r0.length;
     // A header may lack the corner cell above the region names (R's write.table does that).
-    const cornerless = nrows > 0 && r0.length === w - 1;
+    const p0 = r0.map(parseCell);
+    const cornerless =
+      nrows > 0 &&
+      r0.length === w - 1 &&
+      (this.col0Text || isIndexRun(this.col0.map(parseCell))) &&
+      (p0.some((v) => v === undefined) || isIndexRun(p0));
     if (nrows > 0 && !cornerless && r0.length !== w) {
       throw new InputFileError(
         file,
@@ -155,7 +160,6 @@ class RowSink {
         [0, Math.min(r0.length, w) - 1],
       );
     }
-    const p0 = r0.map(parseCell);
     let labels = cornerless || this.col0Text;
     let header = cornerless || p0.some((v, j) => v === undefined && !(labels && j === 0));
     if (nrows === 0 && header)
@@ -242,6 +246,12 @@ async function readSample(file: string, bytes: number): Promise<Buffer> {
 export async function readDelimited(file: string, delimiter?: Delimiter): Promise<Matrix2D> {
   const sample = await readSample(file, 65536);
   if (sample.length === 0) throw new InputFileError(file, 'empty file (0 bytes)', 'empty-file');
+  if (sample[0] === 0x1f && sample[1] === 0x8b) {
+    throw new InputFileError(file, 'is gzip-compressed; decompress it (gunzip) first', 'bad-format');
+  }
+  if ((sample[0] === 0xff && sample[1] === 0xfe) || (sample[0] === 0xfe && sample[1] === 0xff)) {
+    throw new InputFileError(file, 'is UTF-16 text; save it as UTF-8', 'bad-format');
+  }
   if (sample.subarray(0, 4096).includes(0)) {
     throw new InputFileError(file, 'is binary, not delimited text', 'bad-format');
   }
