@@ -4,6 +4,9 @@
 Run with Debian's interpreter, which carries the reference libraries:
     /usr/bin/python3 test/reference/make_stats_refs.py
 then   Rscript test/reference/make_stats_refs.R
+With --live it instead reads diagram pairs as JSON on stdin ([{"a": [[b, d], ...], "b": [...]}, ...])
+and prints, for each, exact W1 and W2 (scipy linear_sum_assignment) and the exact bottleneck
+(gudhi.bottleneck_distance with e = 0); the live cross-check test uses this.
 Writes JSON goldens (and the CSV datasets the R script reads) to test/reference/goldens/stats/.
 
 Tools and versions used for the committed goldens are recorded in each file's "tools" field:
@@ -27,6 +30,8 @@ import statsmodels.formula.api as smf
 from gudhi.representations import SlicedWassersteinDistance
 from statsmodels.stats.multitest import multipletests
 
+import sys
+
 OUT = os.path.join(os.path.dirname(os.path.abspath(__file__)), "goldens", "stats")
 os.makedirs(OUT, exist_ok=True)
 TOOLS = {
@@ -45,6 +50,31 @@ def dump(name, obj):
         json.dump(obj, f, indent=1, allow_nan=False)
         f.write("\n")
 
+
+def exact_wasserstein(A, B, p):
+    """A second, independent exact value: scipy's linear_sum_assignment on the diagonal-augmented cost matrix."""
+    n1, n2 = len(A), len(B)
+    n = n1 + n2
+    if n == 0:
+        return 0.0
+    C = np.zeros((n, n))
+    if n1 and n2:
+        C[:n1, :n2] = np.max(np.abs(A[:, None, :] - B[None, :, :]), axis=-1) ** p
+    C[:n1, n2:] = (((A[:, 1] - A[:, 0]) / 2) ** p)[:, None]
+    C[n1:, :n2] = (((B[:, 1] - B[:, 0]) / 2) ** p)[None, :]
+    r, c = scipy.optimize.linear_sum_assignment(C)
+    return float(C[r, c].sum() ** (1 / p))
+
+
+if "--live" in sys.argv:
+    out = []
+    for case in json.load(sys.stdin):
+        A = np.array(case["a"], dtype=float).reshape(-1, 2)
+        B = np.array(case["b"], dtype=float).reshape(-1, 2)
+        out.append({"w1": exact_wasserstein(A, B, 1), "w2": exact_wasserstein(A, B, 2),
+                    "bottleneck": float(gudhi.bottleneck_distance(A, B, 0))})
+    json.dump(out, sys.stdout)
+    sys.exit(0)
 
 # ---------- GLM: t and F against statsmodels OLS ----------
 def glm_case(name, rng, n_per_group, levels, with_site, contrasts, n_features=4):
@@ -157,21 +187,6 @@ def random_diagram(rng, k, scale=1.0, grid=None):
         b = np.round(b * grid) / grid
         d = np.maximum(b, np.round(d * grid) / grid)
     return np.column_stack([b, d])
-
-
-def exact_wasserstein(A, B, p):
-    """A second, independent exact value: scipy's linear_sum_assignment on the diagonal-augmented cost matrix."""
-    n1, n2 = len(A), len(B)
-    n = n1 + n2
-    if n == 0:
-        return 0.0
-    C = np.zeros((n, n))
-    if n1 and n2:
-        C[:n1, :n2] = np.max(np.abs(A[:, None, :] - B[None, :, :]), axis=-1) ** p
-    C[:n1, n2:] = (((A[:, 1] - A[:, 0]) / 2) ** p)[:, None]
-    C[n1:, :n2] = (((B[:, 1] - B[:, 0]) / 2) ** p)[None, :]
-    r, c = scipy.optimize.linear_sum_assignment(C)
-    return float(C[r, c].sum() ** (1 / p))
 
 
 rng = np.random.default_rng(5)

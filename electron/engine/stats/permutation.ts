@@ -144,7 +144,43 @@ export function permutationTest(
     for (let j = 0; j < m; j++) {
       if (!valid[j]) continue;
       const off = j * n;
-      for (let k = 0; k < nb; k++) {
+      let k = 0;
+      // Several basis vectors per pass over the feature's residuals cut the memory traffic.
+      for (; k + 3 < nb; k += 4) {
+        const b0 = bp[k];
+        const b1 = bp[k + 1];
+        const b2 = bp[k + 2];
+        const b3 = bp[k + 3];
+        let acc0 = 0;
+        let acc1 = 0;
+        let acc2 = 0;
+        let acc3 = 0;
+        for (let i = 0; i < n; i++) {
+          const v = rz[off + i];
+          acc0 += v * b0[i];
+          acc1 += v * b1[i];
+          acc2 += v * b2[i];
+          acc3 += v * b3[i];
+        }
+        dots[k] = acc0;
+        dots[k + 1] = acc1;
+        dots[k + 2] = acc2;
+        dots[k + 3] = acc3;
+      }
+      for (; k + 1 < nb; k += 2) {
+        const b0 = bp[k];
+        const b1 = bp[k + 1];
+        let acc0 = 0;
+        let acc1 = 0;
+        for (let i = 0; i < n; i++) {
+          const v = rz[off + i];
+          acc0 += v * b0[i];
+          acc1 += v * b1[i];
+        }
+        dots[k] = acc0;
+        dots[k + 1] = acc1;
+      }
+      if (k < nb) {
         const b = bp[k];
         let acc = 0;
         for (let i = 0; i < n; i++) acc += rz[off + i] * b[i];
