@@ -120,4 +120,34 @@ describe('tables', () => {
     expect(networkScoreTable(entries, nodes).rows).toEqual([['s1', 'DMN', 'h0_join_value', 0.5, 2]]);
     expect(networkScoreTable(entries, null).rows).toEqual([]);
   });
+
+  it('a capped subject: essential classes are counted apart and clipped at the cap for node weights', () => {
+    // correlation case: H1 [0.803, 0.869) and [0.830, 0.912) outlive a cap at 0.85, and two H0
+    // merges (0.853, 0.893) come after it (golden diagrams).
+    const cc = curves.cases.find((x) => x.name === 'correlation-1-minus-r')!;
+    const dc = distancesOf(cc);
+    const cap = 0.85;
+    const rc = computePersistence(dc, {
+      maxDim: 1,
+      cap: { kind: 'distance', value: cap },
+      representatives: true,
+    });
+    const essential = rc.diagrams[1].filter((iv) => iv.death === Infinity).length;
+    expect(essential).toBeGreaterThan(0); // the cap leaves loops open: the case this test is about
+    const row = subjectFeatureRow(rc, cc.grid, settings(1), dc);
+    expect(row['h1_count_essential']).toBe(essential);
+    expect(row['h1_count_finite']).toBe(rc.diagrams[1].length - essential);
+    expect(row['h0_count_essential']).toBeGreaterThan(1); // three components at the cap
+    const scores = subjectNodeScores(rc, { persistenceFloor: 0 });
+    const total = rc.representatives!.reduce((s, x) => s + (Math.min(x.death, cap) - x.birth), 0);
+    const weightedSize = rc.representatives!.reduce(
+      (s, x) => s + (Math.min(x.death, cap) - x.birth) * x.nodes.length,
+      0,
+    );
+    expect(scores['h1_weighted'].every(Number.isFinite)).toBe(true);
+    expect(scores['h1_weighted'].reduce((a, b) => a + b, 0)).toBeCloseTo(weightedSize, 12);
+    expect(scores['h1_weighted_norm'].reduce((a, b) => a + b, 0)).toBeCloseTo(weightedSize / total, 12);
+    // nodes outside the largest component at the cap have no join value
+    expect(scores['h0_join_value'].some(Number.isNaN)).toBe(true);
+  });
 });
