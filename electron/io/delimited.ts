@@ -25,9 +25,15 @@ export function parseCell(s: string): number | undefined {
   const c = s.charCodeAt(0);
   // Fast path for the common case: a cell that starts like a decimal number.
   if ((c >= 48 && c <= 57) || c === 45 || c === 43 || c === 46) {
-    const v = Number(s);
-    // Number() also reads 0x.., 0b.., 0o..; a matrix cell in those forms is a mistake.
-    if (v === v && !(c === 48 && s.length > 2 && /[xXbBoO]/.test(s[1]))) return v;
+    const v = +s;
+    if (v === v) {
+      // Number() also reads 0x.., 0b.., 0o..; a matrix cell in those forms is a mistake.
+      if (c === 48 && s.length > 2) {
+        const c1 = s.charCodeAt(1) | 0x20;
+        if (c1 === 120 || c1 === 98 || c1 === 111) return undefined;
+      }
+      return v;
+    }
   }
   const t = s.trim().toLowerCase();
   if (MISSING.has(t)) return NaN;
