@@ -20,6 +20,7 @@
  */
 import { EntryHeap } from './heap.ts';
 import { IndexMap } from './index-map.ts';
+import { stableOrder } from './radix.ts';
 import type {
   CycleRepresentative,
   DistanceMatrix,
@@ -241,12 +242,14 @@ class Context {
     const { n, dist, threshold } = this;
     let count = 0;
     for (let i = 0; i < n; i++) for (let j = 0; j < i; j++) if (dist[i * n + j] <= threshold) count++;
+    // Collected in index-descending order, so that a stable sort by diameter yields the
+    // filtration order (diameter ascending, index descending).
     const idx = new Float64Array(count);
     const diam = new Float64Array(count);
     let c = 0;
-    for (let i = 0; i < n; i++) {
+    for (let i = n - 1; i >= 1; i--) {
       const base = (i * (i - 1)) / 2;
-      for (let j = 0; j < i; j++) {
+      for (let j = i - 1; j >= 0; j--) {
         const x = dist[i * n + j];
         if (x <= threshold) {
           idx[c] = base + j;
@@ -254,46 +257,52 @@ class Context {
         }
       }
     }
-    const sorted = filtrationSorted(idx, diam, true, (n * (n - 1)) / 2);
-    return { count, idx: sorted.idx, diam: sorted.diam };
+    const order = stableOrder(diam);
+    return { count, idx: permute(idx, order), diam: permute(diam, order) };
   }
 
   /**
    * All (dim+1)-simplices with diameter ≤ threshold that are not pivots of the dimension-dim
    * reduction (clearing: their columns would reduce to zero), in reverse filtration order.
-   * Each simplex is reached once, from the facet without its largest vertex.
+   * Each simplex is enumerated once, its vertices chosen largest first, pruning a prefix whose
+   * diameter already exceeds the threshold.
    */
   simplicesAbove(dim: number, pivots: IndexMap): { idx: Float64Array; diam: Float64Array } {
     const { n, dist, threshold } = this;
     const k = dim + 1; // vertices of a dim-simplex
     const idxOut: number[] = [];
     const diamOut: number[] = [];
-    // Enumerate dim-simplices recursively by vertex lists v_0 < v_1 < … (as combinations).
+    // Vertices are chosen largest first, each from the top down: the simplices come out in
+    // decreasing combinatorial index, so a stable sort by diameter gives the filtration order.
     const stack = new Int32Array(k + 2);
-    const enumerate = (depth: number, start: number, diamSoFar: number, idxSoFar: number): void => {
-      for (let v = start; v < n; v++) {
+    const enumerate = (depth: number, top: number, diamSoFar: number, idxSoFar: number): void => {
+      const remaining = k - depth; // vertices still to choose below this one
+      for (let v = top; v >= remaining; v--) {
         let dm = diamSoFar;
         for (let q = 0; q < depth; q++) {
           const x = dist[stack[q] * n + v];
           if (x > dm) dm = x;
         }
         if (dm > threshold) continue;
-        const id = idxSoFar + this.choose(v, depth + 1);
+        const id = idxSoFar + this.choose(v, remaining + 1);
         stack[depth] = v;
-        if (depth === k) {
+        if (remaining === 0) {
           if (!pivots.has(id)) {
             idxOut.push(id);
             diamOut.push(dm);
           }
         } else {
-          enumerate(depth + 1, v + 1, dm, id);
+          enumerate(depth + 1, v - 1, dm, id);
         }
       }
     };
-    enumerate(0, 0, 0, 0);
+    enumerate(0, n - 1, 0, 0);
     const idx = Float64Array.from(idxOut);
     const diam = Float64Array.from(diamOut);
-    return filtrationSorted(idx, diam, false, this.choose(n, k + 1));
+    const order = stableOrder(diam);
+    // Reverse filtration order: diameter descending, index ascending.
+    order.reverse();
+    return { idx: permute(idx, order), diam: permute(diam, order) };
   }
 }
 
@@ -303,56 +312,10 @@ interface EdgeList {
   diam: Float64Array;
 }
 
-/**
- * Sorts simplices into filtration order (diam ↑, idx ↓), or its reverse (diam ↓, idx ↑).
- * Every diameter is an edge length, so it is replaced by its rank among the sorted distinct
- * edge lengths; rank and index then pack exactly into one double, rank · M + (M − 1 − index) with
- * M = the number of possible indices (below 2^53 for any n this engine takes), and the native
- * typed-array sort orders the keys without a comparator callback.
- */
-function filtrationSorted(
-  idx: Float64Array,
-  diam: Float64Array,
-  ascending: boolean,
-  maxIndex: number,
-): { idx: Float64Array; diam: Float64Array } {
-  const count = diam.length;
-  const values = Float64Array.from(diam).sort();
-  let distinct = 0;
-  for (let i = 0; i < count; i++) if (i === 0 || values[i] !== values[i - 1]) values[distinct++] = values[i];
-  const M = maxIndex + 1;
-  const outIdx = new Float64Array(count);
-  const outDiam = new Float64Array(count);
-  if (distinct * M > Number.MAX_SAFE_INTEGER) {
-    const order = Array.from({ length: count }, (_, i) => i);
-    order.sort((a, b) => diam[a] - diam[b] || idx[b] - idx[a]);
-    if (!ascending) order.reverse();
-    for (let i = 0; i < count; i++) {
-      outIdx[i] = idx[order[i]];
-      outDiam[i] = diam[order[i]];
-    }
-    return { idx: outIdx, diam: outDiam };
-  }
-  const keys = new Float64Array(count);
-  for (let i = 0; i < count; i++) {
-    let lo = 0;
-    let hi = distinct - 1;
-    const x = diam[i];
-    while (lo < hi) {
-      const mid = (lo + hi) >> 1;
-      if (values[mid] < x) lo = mid + 1;
-      else hi = mid;
-    }
-    keys[i] = lo * M + (maxIndex - idx[i]);
-  }
-  keys.sort();
-  for (let i = 0; i < count; i++) {
-    const key = keys[ascending ? i : count - 1 - i];
-    const rank = Math.floor(key / M);
-    outIdx[i] = maxIndex - (key - rank * M);
-    outDiam[i] = values[rank];
-  }
-  return { idx: outIdx, diam: outDiam };
+function permute(a: Float64Array, order: Uint32Array): Float64Array {
+  const out = new Float64Array(a.length);
+  for (let i = 0; i < order.length; i++) out[i] = a[order[i]];
+  return out;
 }
 
 interface UnionFindResult {

@@ -88,7 +88,7 @@ function timeLoopwise(file: string, dim: number, reps: boolean): { ms: number; r
   );
   if (r.status !== 0) throw new Error(`loopwise child failed: ${r.stderr}`);
   const out = JSON.parse(r.stdout) as { ms: number[]; maxRssKb: number };
-  return { ms: out.ms[0], rssKb: out.maxRssKb };
+  return { ms: median(out.ms), rssKb: out.maxRssKb };
 }
 
 const cases: Array<[number, 1 | 2]> = quick
