@@ -1,7 +1,7 @@
 /**
  * Minimum-cost perfect assignment in a square cost matrix: the Hungarian method of Kuhn (1955)
  * and Munkres (1957) in its shortest-augmenting-path form with dual potentials, O(N³)
- * (Burkard, Dell'Amico & Martello 2009, Assignment Problems, §4.4). It starts from the column
+ * (Burkard, Dell'Amico & Martello 2009, Assignment Problems). It starts from the column
  * and row reductions of Jonker & Volgenant (1987, Computing 38) and a greedy matching on the
  * edges they make tight, so only the rows left unmatched need an augmenting path.
  *

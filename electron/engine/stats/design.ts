@@ -3,7 +3,7 @@
  * treatment-coded dummies for the grouping column (first level is the reference), then the
  * covariates (numeric ones centred, categorical ones dummy-coded against their first level).
  * Contrasts are written on the coefficients: A − B between two levels, or the F-test that all
- * group levels share one mean (Searle 1971, Linear Models, ch. 5; common practice).
+ * group levels share one mean (Searle 1971, Linear Models; common practice).
  *
  * Subjects missing the group or any covariate are left out, each with its reason.
  *

@@ -14,7 +14,7 @@
  * Partial η² of an F-test: SS_effect / (SS_effect + SS_error) = F·df1 / (F·df1 + df2)
  * (Cohen 1973, Educ. Psychol. Meas.).
  *
- *   hedgesG([1, 2, 3], [2, 3, 4, 5])  // −0.87…
+ *   hedgesG([1, 2, 3], [2, 3, 4, 5])  // −1.0658… (d = −1.2677, J(5) = 0.8408)
  */
 import { createRng } from '../random.ts';
 import { logGamma } from './special.ts';

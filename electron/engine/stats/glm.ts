@@ -1,8 +1,8 @@
 /**
  * The general linear model y = M β + ε fitted by least squares for every feature of a family,
  * with the classical tests of a contrast C β = 0: t = cᵀβ̂ / √(σ̂² cᵀ(MᵀM)⁻¹c) on n − r df for one
- * row, F = (Cβ̂)ᵀ[C(MᵀM)⁻¹Cᵀ]⁻¹(Cβ̂) / (s σ̂²) on (s, n − r) df for s rows (Searle 1971;
- * Christensen, Plane Answers to Complex Questions, ch. 3). The fit goes through an orthonormal
+ * row, F = (Cβ̂)ᵀ[C(MᵀM)⁻¹Cᵀ]⁻¹(Cβ̂) / (s σ̂²) on (s, n − r) df for s rows (Searle 1971,
+ * Linear Models; Christensen, Plane Answers to Complex Questions). The fit goes through an orthonormal
  * basis Q of the design (M = Q R) so that normal equations are never formed.
  *
  *   const fit = fitGlm(design.columns, design.contrasts[0], [y1, y2]);

@@ -5,9 +5,9 @@
  * Orthonormal bases come from Gram–Schmidt with one full re-orthogonalisation pass
  * ("twice is enough": Giraud, Langou & Rozložník 2005, Comput. Math. Appl.), which gives
  * orthogonality to working precision, so least squares through Q and R is as accurate as
- * Householder QR (Björck 1996, Numerical Methods for Least Squares Problems, §2.4).
- * Eigenvalues: cyclic Jacobi rotations (Golub & Van Loan 2013, §8.5), accurate for the
- * modest, dense symmetric matrices met here (subjects × subjects).
+ * Householder QR (Björck 1996, Numerical Methods for Least Squares Problems).
+ * Eigenvalues: cyclic Jacobi rotations (Golub & Van Loan, Matrix Computations, 4th ed. 2013,
+ * on Jacobi methods), accurate for the modest, dense symmetric matrices met here (subjects × subjects).
  *
  *   const { q, r, kept } = orthonormalize([Float64Array.of(1, 1, 1), Float64Array.of(1, 2, 3)]);
  *   // kept = [0, 1]; q[0] = (1,1,1)/√3; r is 2 × 2 upper triangular with columns = q · r
@@ -95,7 +95,7 @@ export function solveUpperTransposed(r: ArrayLike<number>[], b: ArrayLike<number
 }
 
 /**
- * Inverse of a small symmetric positive-definite matrix by Cholesky (Golub & Van Loan §4.2);
+ * Inverse of a small symmetric positive-definite matrix by Cholesky (Golub & Van Loan);
  * throws when the matrix is not positive definite.
  */
 export function inverseSpd(a: number[][]): number[][] {
@@ -158,7 +158,8 @@ export function symmetricEigen(values: ArrayLike<number>, n: number): Eigen {
         if (Math.abs(apq) <= threshold || apq === 0) continue;
         const app = a[p * n + p];
         const aqq = a[q * n + q];
-        // The rotation angle that annihilates a[p][q], in the stable form of Golub & Van Loan Alg. 8.5.1.
+        // The rotation that annihilates a[p][q], in the stable form of the 2 × 2 symmetric Schur
+        // decomposition (Golub & Van Loan).
         const tau = (aqq - app) / (2 * apq);
         const t = Math.sign(tau || 1) / (Math.abs(tau) + Math.sqrt(1 + tau * tau));
         const c = 1 / Math.sqrt(1 + t * t);

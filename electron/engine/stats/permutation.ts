@@ -5,7 +5,7 @@
  * The design M is split into a nuisance part Z = M N (N spanning the null space of C, so that
  * span Z = {Mβ : Cβ = 0}) and the tested part, the complement of Z within span M (Winkler,
  * Ridgway, Webster, Smith & Nichols 2014, "Permutation inference for the general linear model",
- * NeuroImage 92, Appendix A; Smith, Jenkinson et al. 2007). Freedman–Lane (Freedman & Lane 1983,
+ * NeuroImage 92, appendix on partitioning the model; cited from memory). Freedman–Lane (Freedman & Lane 1983,
  * J. Bus. Econ. Stat.): the residuals of the nuisance-only fit Rz = (I − Hz) y are permuted,
  * y* = Hz y + P Rz, and the full model is refitted. When Z is the intercept alone the
  * statistic on y* equals the one on P y, i.e. plain label permutation (Pitman 1937), and the
@@ -15,6 +15,12 @@
  * and of the tested part; we permute those few basis vectors (n numbers each) instead of the
  * data and take dot products with every feature's (unit-normalised) Rz, so one permutation
  * costs O(n · (rank M)) per feature, shared by the whole family.
+ *
+ * t-tests are two-sided: permuted and observed statistics are compared as |t|. When the distinct
+ * relabellings are no more than the permutations asked for, all are enumerated (label permutation:
+ * arrangements of the design rows, e.g. C(n, n₁) for two groups; Freedman–Lane: all n! orders of
+ * the residuals) and p = #{T* ≥ T} / N, identity included; otherwise p = (1 + #{T* ≥ T}) / (1 + B)
+ * over B seeded random permutations.
  *
  * FWER: each permutation's maximum over the family of |t| (or F) forms the null distribution of
  * the maximum (Westfall & Young 1993; Nichols & Holmes 2002, Hum. Brain Mapp. 15).
