@@ -377,10 +377,10 @@ function unionFind(ctx: Context, edges: EdgeList, keepNodes: boolean): UnionFind
 /** Persistence pairs of one dimension, as simplex indices and diameters; death = Infinity when essential. */
 interface PairList {
   count: number;
-  birthIdx: number[];
-  birthDiam: number[];
-  deathIdx: number[];
-  deathDiam: number[];
+  birthIdx: Float64Array;
+  birthDiam: Float64Array;
+  deathIdx: Float64Array;
+  deathDiam: Float64Array;
 }
 
 /**
@@ -405,7 +405,21 @@ function reduceCohomology(
   let vDiam = new Float64Array(1024);
   let vUsed = 0;
 
-  const pairs: PairList = { count: 0, birthIdx: [], birthDiam: [], deathIdx: [], deathDiam: [] };
+  // Each column yields at most one pair.
+  const pairs: PairList = {
+    count: 0,
+    birthIdx: new Float64Array(colIdx.length),
+    birthDiam: new Float64Array(colIdx.length),
+    deathIdx: new Float64Array(colIdx.length),
+    deathDiam: new Float64Array(colIdx.length),
+  };
+  const addPair = (bi: number, bd: number, di: number, dd: number): void => {
+    const p = pairs.count++;
+    pairs.birthIdx[p] = bi;
+    pairs.birthDiam[p] = bd;
+    pairs.deathIdx[p] = di;
+    pairs.deathDiam[p] = dd;
+  };
   const heap = new EntryHeap();
   const vs = new Int32Array(k);
   const workIdx: number[] = [];
@@ -467,11 +481,7 @@ function reduceCohomology(
         emergentChecked = true;
         if (!pivotOf.has(cof)) {
           pivotOf.set(cof, c);
-          pairs.count++;
-          pairs.birthIdx.push(sIdx);
-          pairs.birthDiam.push(sDiam);
-          pairs.deathIdx.push(cof);
-          pairs.deathDiam.push(dm);
+          addPair(sIdx, sDiam, cof, dm);
           emergent = true;
           break;
         }
@@ -491,11 +501,7 @@ function reduceCohomology(
       const other = pivotOf.get(p);
       if (other === -1) {
         pivotOf.set(p, c);
-        pairs.count++;
-        pairs.birthIdx.push(sIdx);
-        pairs.birthDiam.push(sDiam);
-        pairs.deathIdx.push(p);
-        pairs.deathDiam.push(heap.topValue());
+        addPair(sIdx, sDiam, p, heap.topValue());
         paired = true;
         break;
       }
@@ -511,11 +517,7 @@ function reduceCohomology(
       }
     }
     if (!paired) {
-      pairs.count++;
-      pairs.birthIdx.push(sIdx);
-      pairs.birthDiam.push(sDiam);
-      pairs.deathIdx.push(-1);
-      pairs.deathDiam.push(Infinity);
+      addPair(sIdx, sDiam, -1, Infinity);
     } else if (workIdx.length > 0) {
       // Store the reduction mod 2: sort by index and drop pairs.
       const order = workIdx.map((_, i) => i).sort((a, b) => workIdx[a] - workIdx[b]);
