@@ -24,6 +24,8 @@ options:
   --file-column NAME    the participants column naming each subject's file
   --match TEXT          only files whose name contains TEXT are matrices
   --drop-regions LIST   0-based regions to leave out, e.g. 3,17 (dead regions)
+  --numeric COLS        participants columns to read as numbers (comma-separated)
+  --categorical COLS    participants columns to read as categories, e.g. site codes 1, 2, 3
 
 exit code: 0 at least one subject is usable, 1 none is, 2 usage error
 `;
@@ -41,11 +43,22 @@ export interface ValidateArgs {
   fileColumn?: string;
   match?: string;
   dropRegions: number[];
+  columnKinds: Record<string, 'numeric' | 'categorical'>;
 }
 
 export function parseValidateArgs(args: string[]): ValidateArgs | null {
   const p = parseArgs(args, {
-    values: ['participants', 'nodes', 'input', 'variable', 'file-column', 'match', 'drop-regions'],
+    values: [
+      'participants',
+      'nodes',
+      'input',
+      'variable',
+      'file-column',
+      'match',
+      'drop-regions',
+      'numeric',
+      'categorical',
+    ],
     flags: ['json', 'time-series', 'help'],
   });
   if (p.flags.has('help')) return null;
@@ -63,6 +76,15 @@ export function parseValidateArgs(args: string[]): ValidateArgs | null {
           }
           return x;
         });
+  const columnKinds: Record<string, 'numeric' | 'categorical'> = {};
+  for (const kind of ['numeric', 'categorical'] as const) {
+    for (const name of (p.values.get(kind) ?? '').split(',')) {
+      if (name.trim() === '') continue;
+      if (columnKinds[name.trim()])
+        throw new UsageError(`column '${name.trim()}' given as both numeric and categorical`);
+      columnKinds[name.trim()] = kind;
+    }
+  }
   return {
     dir: p.positionals[0],
     participants: p.values.get('participants'),
@@ -74,6 +96,7 @@ export function parseValidateArgs(args: string[]): ValidateArgs | null {
     fileColumn: p.values.get('file-column'),
     match: p.values.get('match'),
     dropRegions,
+    columnKinds,
   };
 }
 
@@ -144,6 +167,7 @@ export async function validateCommand(args: string[], io: CliIO): Promise<number
         timeSeries: a.timeSeries,
         fileColumn: a.fileColumn,
         match: a.match,
+        columnKinds: a.columnKinds,
       },
       { input: a.input, dropRegions: a.dropRegions },
     );

@@ -210,6 +210,17 @@ export async function openCohort(
         }
         const fileCol = fileColName ? t.header.indexOf(fileColName) : -1;
         const skip = new Set([t.header[idCol], ...(fileColName ? [fileColName] : [])]);
+        for (const name of Object.keys(req.columnKinds ?? {})) {
+          if (!t.header.includes(name)) {
+            add({
+              severity: 'warning',
+              code: 'covariate-unknown',
+              file: pf,
+              subject: null,
+              message: `no column '${name}' to read as ${req.columnKinds![name]} (columns: ${t.header.join(', ')})`,
+            });
+          }
+        }
         const cov = covariateColumns(pf, t, skip, req.columnKinds, findings);
         columns = cov.columns;
         t.rows.forEach((r, k) => {
@@ -643,6 +654,37 @@ export function dropRegions(m: SquareMatrix, drop: number[]): SquareMatrix {
 }
 
 /**
+ * A .mat stack can only be read whole (its values may be compressed), so the last one read is
+ * kept for the next subject: loading a stack cohort subject by subject reads the file once, not
+ * once per subject. Keyed by size and modification time, so a changed file is read again.
+ */
+let lastStack: { key: string; data: ArrayFile } | null = null;
+
+async function matStackSlice(file: string, variable: string | undefined, index: number): Promise<Matrix2D> {
+  let key = '';
+  try {
+    const st = await stat(file);
+    key = `${file}\0${variable ?? ''}\0${st.size}\0${st.mtimeMs}`;
+  } catch {
+    // Unreadable: readArrayFile below says why.
+  }
+  if (!lastStack || lastStack.key !== key || key === '') {
+    lastStack = null;
+    lastStack = { key, data: await readArrayFile(file, { variable }) };
+  }
+  const data = lastStack.data;
+  if (data.kind !== 'stack') {
+    if (index === 0) return { ...data.matrix, values: data.matrix.values.slice() };
+    throw new InputFileError(
+      file,
+      `holds one matrix, not a stack; stack index ${index} does not exist`,
+      'stack-index',
+    );
+  }
+  return data.slice(index);
+}
+
+/**
  * One subject's matrix, read again from its source: a square matrix as stored, or the
  * correlation of its time series (Pearson by default, Ledoit–Wolf by option).
  */
@@ -651,7 +693,10 @@ export async function loadSubjectMatrix(
   options: LoadOptions = {},
 ): Promise<SquareMatrix> {
   const { file, variable, stackIndex, timeSeries } = entry.source;
-  const m = await readTable2D(file, { variable, stackIndex });
+  const m =
+    stackIndex !== undefined && formatOf(file) === 'mat'
+      ? await matStackSlice(file, variable, stackIndex)
+      : await readTable2D(file, { variable, stackIndex });
   let matrix: SquareMatrix;
   if (timeSeries) {
     if (m.rows < 3)

@@ -233,6 +233,50 @@ describe('time series per subject, files named in a column', () => {
 });
 
 describe('other layouts and doors', () => {
+  it('a MATLAB-layout stack (N × N × subjects) in a .mat gives each participant its slice', async () => {
+    const d = tempDir();
+    copyFileSync(join(FIX, 'readers', 'stack_matlab_layout.mat'), join(d, 'stack.mat'));
+    writeFileSync(
+      join(d, 'participants.tsv'),
+      'participant_id\tgroup\nsub-p\t1\nsub-q\t2\nsub-r\t1\nsub-s\t2\n',
+    );
+    const exp = readJson<{ files: Record<string, { values: Json[][] }> }>(
+      join(FIX, 'readers', 'expected.json'),
+    );
+    const report = await openCohort({ dir: d, columnKinds: { group: 'categorical', nope: 'numeric' } });
+    expect(report.columns).toEqual([{ name: 'group', kind: 'categorical', levels: ['1', '2'], missing: 0 }]);
+    expect(report.findings.map((f) => f.code)).toEqual(['covariate-unknown']);
+    for (const [k, s] of report.subjects.entries()) {
+      expect(s.source).toMatchObject({ stackIndex: k, variable: 'S' });
+      const m = await loadSubjectMatrix(s);
+      expect(Array.from(m.values)).toEqual(Array.from(flat(exp.files['stack_matlab_layout.mat'].values[k])));
+    }
+  });
+
+  it('a file column names each file; a named file that is missing is reported', async () => {
+    const d = tempDir();
+    copyFileSync(join(FIX, 'readers', 'f8_c_v1.npy'), join(d, 'a.npy'));
+    copyFileSync(join(FIX, 'readers', 'f4_c_v2.npy'), join(d, 'b.npy'));
+    writeFileSync(join(d, 'table.csv'), 'participant_id,conn\nsub-a,a.npy\nsub-b,b.npy\nsub-c,c.npy\n');
+    writeFileSync(join(d, 'nodes.tsv'), 'name\tmodule\nA\tm\nB\tm\n');
+    const report = await openCohort({ dir: d, participants: 'table.csv', fileColumn: 'conn' });
+    expect(report.subjects.map((s) => [s.id, s.usable])).toEqual([
+      ['sub-a', true],
+      ['sub-b', true],
+    ]);
+    expect(report.findings.map((f) => `${f.code}:${f.subject}`).sort()).toEqual([
+      'no-matrix:sub-c',
+      'nodes-count:null',
+    ]);
+    expect(report.nodes!.map((x) => [x.label, x.network])).toEqual([
+      ['A', 'm'],
+      ['B', 'm'],
+    ]);
+    await expect(openCohort({ dir: d, participants: 'table.csv', fileColumn: 'nope' })).rejects.toThrow(
+      /no column 'nope'/,
+    );
+  });
+
   it('without a participants table names subjects from their files', async () => {
     const d = tempDir();
     mkdirSync(join(d, 'sub-x1'));

@@ -56,6 +56,24 @@ describe('loopwise validate', () => {
     expect(other.code).toBe(0);
   });
 
+  it('--numeric / --categorical override the detected column kinds', async () => {
+    const r = await run([
+      'validate',
+      join(FIX, 'cohort-bids'),
+      '--json',
+      '--categorical',
+      'age',
+      '--numeric',
+      'site',
+    ]);
+    const report = JSON.parse(r.out) as CohortReport;
+    expect(report.columns.find((c) => c.name === 'age')!.kind).toBe('categorical');
+    expect(report.columns.find((c) => c.name === 'site')!.kind).toBe('numeric');
+    // 'A' and 'B' are no numbers: each is flagged and read as missing.
+    expect(report.findings.filter((f) => f.code === 'covariate-not-numeric')).toHaveLength(3);
+    expect((await run(['validate', FIX, '--numeric', 'x', '--categorical', 'x'])).code).toBe(2);
+  });
+
   it('exits 1 when no subject is usable', async () => {
     const d = mkdtempSync(join(tmpdir(), 'loopwise-validate-'));
     temps.push(d);
