@@ -44,7 +44,7 @@ async function writeMatrix(
   for (let i = 0; i < n; i++) {
     const row: string[] = [];
     for (let j = 0; j < n; j++) row.push(digits >= 17 ? String(m[i * n + j]) : m[i * n + j].toFixed(digits));
-    if (!out.write(row.join(sep) + '\n')) await new Promise((r) => out.once('drain', r));
+    if (!out.write(row.join(sep) + '\n')) await new Promise<void>((r) => out.once('drain', () => r()));
   }
   await new Promise<void>((r, e) => out.end((err?: Error | null) => (err ? e(err) : r())));
 }
