@@ -5,8 +5,9 @@
  *
  *   statsTable([testFamily(design, contrast, family, { seed: 1 })]).columns[0]  // 'family'
  */
-import type { Table } from '../../api.ts';
+import type { CohortResults, Table } from '../../api.ts';
 import type { DistanceTest } from './diagram-tests.ts';
+import type { Embedding } from './embedding.ts';
 import type { FamilyResult } from './family.ts';
 
 export const STATS_COLUMNS = [
@@ -117,4 +118,24 @@ export function diagramTestsTable(entries: DiagramTestEntry[]): Table {
       e.result.warnings.length > 0 ? e.result.warnings.join('; ') : null,
     ]),
   };
+}
+
+/** The `embedding` entries of CohortResults from a 2-D map, aligned with `ids`. */
+export function embeddingEntries(
+  ids: string[],
+  groups: Array<string | null>,
+  embedding: Embedding,
+): NonNullable<CohortResults['embedding']> {
+  if (ids.length !== embedding.coordinates.length || groups.length !== ids.length) {
+    throw new Error(
+      `embedding has ${embedding.coordinates.length} points for ${ids.length} subjects and ${groups.length} group labels`,
+    );
+  }
+  return ids.map((subject, i) => ({
+    subject,
+    group: groups[i],
+    x: embedding.coordinates[i][0],
+    y: embedding.coordinates[i][1],
+    method: embedding.method,
+  }));
 }

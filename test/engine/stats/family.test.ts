@@ -1,4 +1,4 @@
-// A family through to stats.tsv rows, and diagram tests through to diagram-tests.tsv rows.
+// A family through to stats.tsv rows, diagram tests to diagram-tests.tsv rows, and a map to embedding entries.
 import { describe, expect, it } from 'vitest';
 import { createRng } from '../../../electron/engine/random.ts';
 import { buildDesign } from '../../../electron/engine/stats/design.ts';
@@ -7,9 +7,11 @@ import { permanova } from '../../../electron/engine/stats/diagram-tests.ts';
 import { hedgesG } from '../../../electron/engine/stats/effect-size.ts';
 import { testFamily, type FeatureFamily } from '../../../electron/engine/stats/family.ts';
 import { bhQValues } from '../../../electron/engine/stats/multiple.ts';
+import { classicalMds } from '../../../electron/engine/stats/embedding.ts';
 import {
   diagramTestsTable,
   DIAGRAM_TEST_COLUMNS,
+  embeddingEntries,
   statsTable,
   STATS_COLUMNS,
 } from '../../../electron/engine/stats/tables.ts';
@@ -117,5 +119,26 @@ describe('diagram-tests.tsv', () => {
     expect(table.rows[0][col('permutation_mode')]).toBe('exact');
     expect(table.rows[0][col('seed')]).toBe(4);
     expect(table.rows[0][col('warning')]).toMatch(/smallest attainable p is 0\.167/);
+  });
+});
+
+describe('embedding entries', () => {
+  it('pair subjects, groups and MDS coordinates', () => {
+    const d = { n: 3, values: Float64Array.of(0, 3, 4, 3, 0, 5, 4, 5, 0) };
+    const emb = classicalMds(d);
+    const rows = embeddingEntries(['a', 'b', 'c'], ['x', null, 'y'], emb);
+    expect(rows[1]).toEqual({
+      subject: 'b',
+      group: null,
+      x: emb.coordinates[1][0],
+      y: emb.coordinates[1][1],
+      method: 'mds',
+    });
+    // A 3-4-5 triangle is Euclidean in the plane: MDS recovers its side lengths.
+    const dist = (i: number, j: number) => Math.hypot(rows[i].x - rows[j].x, rows[i].y - rows[j].y);
+    expect(dist(0, 1)).toBeCloseTo(3, 10);
+    expect(dist(0, 2)).toBeCloseTo(4, 10);
+    expect(dist(1, 2)).toBeCloseTo(5, 10);
+    expect(() => embeddingEntries(['a'], ['x'], emb)).toThrow(/3 points for 1 subjects/);
   });
 });
