@@ -89,42 +89,75 @@ describe('exact enumeration', () => {
     });
   }
 
-  it('Freedman–Lane with a covariate matches the literal algorithm over all 6! permutations', () => {
-    const rng = createRng(77);
-    const labels = ['a', 'a', 'a', 'b', 'b', 'b'];
-    const age = [31, 45, 28, 52, 60, 39];
-    const d = buildDesign(
-      twoGroups(labels, (i) => ({ age: age[i] })),
-      { groupColumn: 'dx', covariates: ['age'] },
-    );
-    const features = Array.from({ length: 3 }, () => age.map((x) => 0.05 * x + normal(rng)));
-    const res = permutationTest(d.columns, d.contrasts[0], features, { seed: 1, permutations: 5000 });
-    expect(res.scheme).toBe('freedman-lane');
-    expect(res.run.mode).toBe('exact');
-    expect(res.run.visited).toBe(720);
-    // Literal: nuisance Z = [1, age]; y* = Hz y + P (I − Hz) y; refit the full model.
-    const qz = orthonormalize([d.columns[0], d.columns[2]]).q;
-    const perms = allPermutations(6);
-    const literal = (y: number[], p: number[]) => {
-      const fitted = new Float64Array(6);
-      for (const q of qz) {
-        const c = dot(q, y);
-        for (let i = 0; i < 6; i++) fitted[i] += c * q[i];
-      }
-      const resid = y.map((v, i) => v - fitted[i]);
-      return Array.from(fitted, (f, i) => f + resid[p[i]]);
-    };
-    const observed = features.map((y) => Math.abs(fitGlm(d.columns, d.contrasts[0], [y]).statistic[0]));
-    const permStats = perms.map((p) =>
-      features.map((y) => Math.abs(fitGlm(d.columns, d.contrasts[0], [literal(y, p)]).statistic[0])),
-    );
-    observed.forEach((t, j) => {
-      const ge = permStats.filter((s) => s[j] >= t - 1e-9).length;
-      const geMax = permStats.filter((s) => Math.max(...s) >= t - 1e-9).length;
-      expect(res.pUncorrected[j]).toBeCloseTo(ge / 720, 14);
-      expect(res.pFwer[j]).toBeCloseTo(geMax / 720, 14);
+  const flCases: Array<{
+    title: string;
+    labels: string[];
+    covariates: string[];
+    contrast: { kind: 'pair'; a: string; b: string } | { kind: 'all-levels' };
+    // The nuisance space written out by hand from the design columns.
+    nuisance: (c: Float64Array[]) => Float64Array[];
+  }> = [
+    {
+      title: 'two groups, age; t of a − b; Z = [1, age]',
+      labels: ['a', 'a', 'a', 'b', 'b', 'b'],
+      covariates: ['age'],
+      contrast: { kind: 'pair', a: 'a', b: 'b' },
+      nuisance: (c) => [c[0], c[2]],
+    },
+    {
+      title: 'three groups, age; F over all levels; Z = [1, age]',
+      labels: ['a', 'b', 'c', 'a', 'b', 'c'],
+      covariates: ['age'],
+      contrast: { kind: 'all-levels' },
+      nuisance: (c) => [c[0], c[3]],
+    },
+    {
+      title: 'three groups, no covariate; t of c − b; Z = [1, b + c]',
+      labels: ['a', 'b', 'c', 'a', 'b', 'c'],
+      covariates: [],
+      contrast: { kind: 'pair', a: 'c', b: 'b' },
+      nuisance: (c) => [c[0], c[1].map((v, i) => v + c[2][i])],
+    },
+  ];
+  for (const fl of flCases) {
+    it(`Freedman–Lane matches the literal algorithm over all 6! permutations: ${fl.title}`, () => {
+      const rng = createRng(77);
+      const age = [31, 45, 28, 52, 60, 39];
+      const d = buildDesign(
+        twoGroups(fl.labels, (i) => ({ age: age[i] })),
+        { groupColumn: 'dx', covariates: fl.covariates, contrasts: [fl.contrast] },
+      );
+      const contrast = d.contrasts[0];
+      const features = Array.from({ length: 3 }, (_, j) =>
+        age.map((x, i) => 0.05 * x + normal(rng) + (fl.labels[i] === 'c' ? j : 0)),
+      );
+      const res = permutationTest(d.columns, contrast, features, { seed: 1, permutations: 5000 });
+      expect(res.scheme).toBe('freedman-lane');
+      expect(res.run.mode).toBe('exact');
+      expect(res.run.visited).toBe(720);
+      // Literal: y* = Hz y + P (I − Hz) y, then refit the full model.
+      const qz = orthonormalize(fl.nuisance(d.columns)).q;
+      const literal = (y: number[], p: number[]) => {
+        const fitted = new Float64Array(6);
+        for (const q of qz) {
+          const c = dot(q, y);
+          for (let i = 0; i < 6; i++) fitted[i] += c * q[i];
+        }
+        const resid = y.map((v, i) => v - fitted[i]);
+        return Array.from(fitted, (f, i) => f + resid[p[i]]);
+      };
+      const stat = (y: ArrayLike<number>) => Math.abs(fitGlm(d.columns, contrast, [y]).statistic[0]);
+      const observed = features.map(stat);
+      const permStats = allPermutations(6).map((p) => features.map((y) => stat(literal(y, p))));
+      observed.forEach((t, j) => {
+        expect(res.statistic[j]).toBeCloseTo(fitGlm(d.columns, contrast, [features[j]]).statistic[0], 10);
+        const ge = permStats.filter((s) => s[j] >= t - 1e-9).length;
+        const geMax = permStats.filter((s) => Math.max(...s) >= t - 1e-9).length;
+        expect(res.pUncorrected[j]).toBeCloseTo(ge / 720, 14);
+        expect(res.pFwer[j]).toBeCloseTo(geMax / 720, 14);
+      });
     });
-  });
+  }
 });
 
 function allPermutations(n: number): number[][] {
