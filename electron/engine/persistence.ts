@@ -270,8 +270,9 @@ class Context {
   simplicesAbove(dim: number, pivots: IndexMap): { idx: Float64Array; diam: Float64Array } {
     const { n, dist, threshold } = this;
     const k = dim + 1; // vertices of a dim-simplex
-    const idxOut: number[] = [];
-    const diamOut: number[] = [];
+    let idxOut = new Float64Array(1 << 12);
+    let diamOut = new Float64Array(1 << 12);
+    let count = 0;
     // Vertices are chosen largest first, each from the top down: the simplices come out in
     // decreasing combinatorial index, so a stable sort by diameter gives the filtration order.
     const stack = new Int32Array(k + 2);
@@ -288,8 +289,16 @@ class Context {
         stack[depth] = v;
         if (remaining === 0) {
           if (!pivots.has(id)) {
-            idxOut.push(id);
-            diamOut.push(dm);
+            if (count === idxOut.length) {
+              const bigger = new Float64Array(2 * count);
+              bigger.set(idxOut);
+              idxOut = bigger;
+              const biggerDiam = new Float64Array(2 * count);
+              biggerDiam.set(diamOut);
+              diamOut = biggerDiam;
+            }
+            idxOut[count] = id;
+            diamOut[count++] = dm;
           }
         } else {
           enumerate(depth + 1, v - 1, dm, id);
@@ -297,8 +306,8 @@ class Context {
       }
     };
     enumerate(0, n - 1, 0, 0);
-    const idx = Float64Array.from(idxOut);
-    const diam = Float64Array.from(diamOut);
+    const idx = idxOut.subarray(0, count);
+    const diam = diamOut.subarray(0, count);
     const order = stableOrder(diam);
     // Reverse filtration order: diameter descending, index ascending.
     order.reverse();

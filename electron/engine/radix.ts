@@ -18,19 +18,29 @@ export function stableOrder(values: Float64Array): Uint32Array {
     copy[i] = x + 0; // −0 → +0
   }
   const words = new Uint32Array(copy.buffer);
-  const [lo, hi] = LITTLE_ENDIAN ? [0, 1] : [1, 0];
+  const [loWord, hiWord] = LITTLE_ENDIAN ? [0, 1] : [1, 0];
+  // The keys travel with the permutation, so every pass reads sequentially.
+  let lo = new Uint32Array(n);
+  let hi = new Uint32Array(n);
   let order = new Uint32Array(n);
-  for (let i = 0; i < n; i++) order[i] = i;
-  let spare = new Uint32Array(n);
+  for (let i = 0; i < n; i++) {
+    lo[i] = words[2 * i + loWord];
+    hi[i] = words[2 * i + hiWord];
+    order[i] = i;
+  }
+  let lo2 = new Uint32Array(n);
+  let hi2 = new Uint32Array(n);
+  let order2 = new Uint32Array(n);
   const count = new Uint32Array(65537);
-  for (const [word, shift] of [
-    [lo, 0],
-    [lo, 16],
-    [hi, 0],
-    [hi, 16],
-  ]) {
+  for (const [useHi, shift] of [
+    [false, 0],
+    [false, 16],
+    [true, 0],
+    [true, 16],
+  ] as const) {
+    const key = useHi ? hi : lo;
     count.fill(0);
-    for (let i = 0; i < n; i++) count[((words[2 * i + word] >>> shift) & 0xffff) + 1]++;
+    for (let i = 0; i < n; i++) count[((key[i] >>> shift) & 0xffff) + 1]++;
     let constant = false;
     for (let d = 1; d <= 65536; d++) {
       if (count[d] === n) {
@@ -41,13 +51,15 @@ export function stableOrder(values: Float64Array): Uint32Array {
     }
     if (constant) continue;
     for (let d = 1; d <= 65536; d++) count[d] += count[d - 1];
-    for (let j = 0; j < n; j++) {
-      const i = order[j];
-      spare[count[(words[2 * i + word] >>> shift) & 0xffff]++] = i;
+    for (let i = 0; i < n; i++) {
+      const at = count[(key[i] >>> shift) & 0xffff]++;
+      lo2[at] = lo[i];
+      hi2[at] = hi[i];
+      order2[at] = order[i];
     }
-    const t = order;
-    order = spare;
-    spare = t;
+    [lo, lo2] = [lo2, lo];
+    [hi, hi2] = [hi2, hi];
+    [order, order2] = [order2, order];
   }
   return order;
 }
