@@ -190,7 +190,13 @@ export function diagramDistanceMatrix(
   metric: DiagramMetric,
   infinite: InfiniteHandling = 'drop',
 ): SquareMatrix {
-  const finite = diagrams.map((d) => finiteDiagram(d, infinite));
+  const finite = diagrams.map((d, i) => {
+    try {
+      return finiteDiagram(d, infinite);
+    } catch (e) {
+      throw new Error(`diagram ${i}: ${(e as Error).message}`);
+    }
+  });
   const n = finite.length;
   const values = new Float64Array(n * n);
   for (let i = 0; i < n; i++) {

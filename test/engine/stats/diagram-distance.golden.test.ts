@@ -105,5 +105,17 @@ describe('diagram distances by hand', () => {
     expect(() => finiteDiagram([[2, 1]])).toThrow(/point 0 has an invalid death/);
     expect(() => finiteDiagram([[0, null]], { clip: -1 })).toThrow(/clip value -1/);
     expect(() => wasserstein([], [], 0.5)).toThrow(/p ≥ 1/);
+    expect(() =>
+      diagramDistanceMatrix(
+        [
+          [[0, 1]],
+          [
+            [0, 1],
+            [NaN, 2],
+          ],
+        ],
+        { kind: 'bottleneck' },
+      ),
+    ).toThrow(/diagram 1: diagram point 1 has a non-finite birth/);
   });
 });
