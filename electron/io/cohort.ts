@@ -262,7 +262,7 @@ export async function openCohort(
   let stack: { file: string; data: ArrayFile } | null = null;
   if (files.length === 1 && formatOf(files[0]) !== 'delimited' && !table?.fileCells) {
     try {
-      const data = await readArrayFile(files[0], { variable: req.variable });
+      const data = await readArrayFile(files[0], { variable: req.variable, timeSeries: req.timeSeries });
       if (data.kind === 'stack') stack = { file: files[0], data };
     } catch {
       // Not readable: reported below as that subject's file.
@@ -525,7 +525,7 @@ export async function openCohort(
       if (stack && file === stack.file && stack.data.kind === 'stack')
         m = stack.data.slice(entry.source.stackIndex!);
       else {
-        const data = await readArrayFile(file, { variable: req.variable });
+        const data = await readArrayFile(file, { variable: req.variable, timeSeries: req.timeSeries });
         if (data.variable) entry.source.variable = data.variable;
         if (data.kind === 'stack') {
           throw new InputFileError(
@@ -696,7 +696,7 @@ export async function loadSubjectMatrix(
   const m =
     stackIndex !== undefined && formatOf(file) === 'mat'
       ? await matStackSlice(file, variable, stackIndex)
-      : await readTable2D(file, { variable, stackIndex });
+      : await readTable2D(file, { variable, stackIndex, timeSeries });
   let matrix: SquareMatrix;
   if (timeSeries) {
     if (m.rows < 3)

@@ -90,7 +90,10 @@ class RowSink {
   private lastAlwaysEmpty = true;
   private othersFilled = false;
 
-  constructor(private readonly file: string) {}
+  constructor(
+    private readonly file: string,
+    private readonly squareHint: boolean,
+  ) {}
 
   push(cells: string[]): void {
     if (this.row0 === null) {
@@ -174,11 +177,16 @@ class RowSink {
     let cols = w - (labels ? 1 : 0);
     let rows = nrows + (header ? 0 : 1);
     // A header or label column of region numbers (0..n−1 or 1..n) is told from data by the table turning square.
-    if (!header && rows === cols + 1 && isIndexRun(p0.slice(labels ? 1 : 0, (labels ? 1 : 0) + cols))) {
+    if (
+      this.squareHint &&
+      !header &&
+      rows === cols + 1 &&
+      isIndexRun(p0.slice(labels ? 1 : 0, (labels ? 1 : 0) + cols))
+    ) {
       header = true;
       rows--;
     }
-    if (!labels && cols === rows + 1) {
+    if (this.squareHint && !labels && cols === rows + 1) {
       const first = [...(header ? [] : [p0[0]]), ...this.col0.map(parseCell)];
       if (isIndexRun(first)) {
         labels = true;
@@ -248,8 +256,15 @@ async function readSample(file: string, bytes: number): Promise<Buffer> {
   }
 }
 
-/** Reads a delimited text file into a table of numbers. */
-export async function readDelimited(file: string, delimiter?: Delimiter): Promise<Matrix2D> {
+/**
+ * Reads a delimited text file into a table of numbers. With `squareHint` (the default, for
+ * matrices) a first row or column of region numbers that would leave the table square is taken
+ * as a header or label column; time series are read without it.
+ */
+export async function readDelimited(
+  file: string,
+  options: { delimiter?: Delimiter; squareHint?: boolean } = {},
+): Promise<Matrix2D> {
   const sample = await readSample(file, 65536);
   if (sample.length === 0) throw new InputFileError(file, 'empty file (0 bytes)', 'empty-file');
   if (sample[0] === 0x1f && sample[1] === 0x8b) {
@@ -262,8 +277,8 @@ export async function readDelimited(file: string, delimiter?: Delimiter): Promis
     throw new InputFileError(file, 'is binary, not delimited text', 'bad-format');
   }
   const text = sample.toString('utf8').replace(/^\uFEFF/, '');
-  const d = delimiter ?? detectDelimiter(text);
-  const sink = new RowSink(file);
+  const d = options.delimiter ?? detectDelimiter(text);
+  const sink = new RowSink(file, options.squareHint ?? true);
   if (d === 'whitespace') await streamWhitespace(file, sink);
   else await streamPapa(file, d, sink);
   return sink.finish();

@@ -74,7 +74,8 @@ export function checkSquare(m: Matrix2D, o: CheckOptions): CheckResult {
       ),
     );
   }
-  const live = (i: number): boolean => keep(i) && !dead.includes(i);
+  const isLive = Uint8Array.from({ length: n }, (_, i) => (keep(i) && !dead.includes(i) ? 1 : 0));
+  const live = (i: number): boolean => isLive[i] === 1;
 
   let nanCount = 0;
   let nanAt: [number, number] | null = null;

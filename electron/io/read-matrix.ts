@@ -32,6 +32,8 @@ export function formatOf(file: string): MatrixFormat | null {
 export interface MatrixPick {
   variable?: string;
   stackIndex?: number;
+  /** The file holds time series, not a square matrix: no guessing of header rows from squareness. */
+  timeSeries?: boolean;
 }
 
 /** What a file holds, read whole. */
@@ -89,7 +91,12 @@ export async function readArrayFile(file: string, pick: MatrixPick = {}): Promis
   const format = formatOf(file);
   switch (format) {
     case 'delimited':
-      return { format, variable: null, kind: 'matrix', matrix: await readDelimited(file) };
+      return {
+        format,
+        variable: null,
+        kind: 'matrix',
+        matrix: await readDelimited(file, { squareHint: !pick.timeSeries }),
+      };
     case 'npy':
       return wrap(file, format, null, await readNpy(file));
     case 'mat': {

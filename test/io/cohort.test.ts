@@ -221,6 +221,20 @@ describe('time series per subject, files named in a column', () => {
     expect(report.findings[0].message).toMatch(/time series/);
   });
 
+  it('flags missing time points and fewer time points than regions', async () => {
+    const d = tempDir();
+    const rows = Array.from({ length: 4 }, (_, t) =>
+      [t, Math.sin(t), t === 2 ? 'NaN' : Math.cos(t), t * t, 1 / (t + 1)].join('\t'),
+    );
+    writeFileSync(join(d, 'sub-01_ts.tsv'), rows.join('\n') + '\n');
+    const report = await openCohort({ dir: d, timeSeries: true });
+    const codes = report.findings.map((f) => f.code);
+    expect(codes).toContain('nan-cells');
+    expect(codes).toContain('few-timepoints');
+    expect(report.findings.find((f) => f.code === 'nan-cells')!.where).toEqual([2, 2]);
+    expect(report.subjects[0].usable).toBe(false);
+  });
+
   it('names a constant region as dead', async () => {
     const d = tempDir();
     const rows = Array.from({ length: 10 }, (_, t) => [Math.sin(t), 3, Math.cos(t * 1.3), t % 3].join(','));
