@@ -83,7 +83,8 @@ export function pearson(series: TimeSeries): SquareMatrix {
 /**
  * Ledoit–Wolf shrinkage (Ledoit & Wolf 2004, "A well-conditioned estimator for large-dimensional
  * covariance matrices", J. Multivariate Anal. 88:365–411, Lemma 3.2–3.4), applied to z-scored
- * series so that every region weighs the same and the target m·I is (nearly) the identity:
+ * series so that every region weighs the same and the target m·I is (nearly) the identity
+ * (standardising the series first is common practice for functional connectivity):
  *
  *   S = YᵀY / T                      Y the z-scored series (population sd), T × p
  *   m = tr(S) / p                    ‖A‖² = tr(AAᵀ) / p (the paper's normalised Frobenius norm)

@@ -149,6 +149,7 @@ export function checkSquare(m: Matrix2D, o: CheckOptions): CheckResult {
         }
       }
     }
+    // atanh(1) = ∞, and atanh of 0.995 is already 3: a Fisher-z matrix has an infinite or large diagonal.
     const diagBig = diag.length > 0 && diag.every((d) => !Number.isFinite(d) || Math.abs(d) > 3);
     if (outside > 0 && diagBig) {
       out.push(
