@@ -9,7 +9,7 @@ dlmwrite, save -ascii) are written by hand below in the formats those functions 
 writematrix writes up to 15 significant digits, save -ascii writes %.7e in 16-character fields),
 and so is the header of a -v7.3 file (no HDF5 library here), which the reader only has to refuse.
 
-Run: /usr/bin/python3 test/reference/make_io_fixtures.py   (writes into test/fixtures/io/)
+Run: /usr/bin/python3 test/reference/make_io_fixtures.py   (writes into test/fixtures/io/, or $LOOPWISE_FIXTURE_OUT)
 JSON encoding of values: NaN -> null, +-Infinity -> "Infinity" / "-Infinity".
 """
 import json
@@ -26,7 +26,8 @@ import sklearn
 from numpy.lib import format as npformat
 from sklearn.covariance import LedoitWolf
 
-ROOT = os.path.join(os.path.dirname(os.path.abspath(__file__)), '..', 'fixtures', 'io')
+# LOOPWISE_FIXTURE_OUT redirects the output (the live test writes a fresh set to a temporary folder).
+ROOT = os.environ.get('LOOPWISE_FIXTURE_OUT') or os.path.join(os.path.dirname(os.path.abspath(__file__)), '..', 'fixtures', 'io')
 rng = np.random.default_rng(20261202)
 TOOLS = {
     'python': sys.version.split()[0],
