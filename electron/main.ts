@@ -10,6 +10,7 @@ import { existsSync, mkdirSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import type { LoopwiseApi } from './api.ts';
+import { createLoopwiseService } from './service/service.ts';
 import { BadRequest, checkCall, isApiMethod, type DoorInfo } from './web-client.ts';
 import { CONTENT_SECURITY_POLICY, insideRoots, realPathOf } from './web.ts';
 
@@ -130,11 +131,6 @@ export function startElectronApp(api: LoopwiseApi, opts: ElectronAppOptions): vo
   });
 }
 
-/** The real service, built in this process (its engine runs on worker threads). */
-async function createService(_cacheDir: string): Promise<LoopwiseApi> {
-  throw new Error('the Loopwise service is not available in this build');
-}
-
 /** Boots the packaged or development app: dist-electron/main.js next to dist/ and sample-data/. */
 async function boot(): Promise<void> {
   const here = dirname(fileURLToPath(import.meta.url));
@@ -145,7 +141,11 @@ async function boot(): Promise<void> {
     join(process.resourcesPath ?? '', 'sample-data', 'cohort'),
     join(appRoot, 'sample-data', 'cohort'),
   ].find((p) => existsSync(p));
-  const api = await createService(join(app.getPath('userData'), 'cache'));
+  // The engine runs on worker threads; the build bundles their entry next to this file.
+  const api = createLoopwiseService({
+    cacheDir: join(app.getPath('userData'), 'cache'),
+    workerEntry: pathToFileURL(join(here, 'filtration-worker.js')),
+  });
   startElectronApp(api, {
     indexHtml: join(appRoot, 'dist', 'index.html'),
     preload: join(here, 'preload.cjs'),

@@ -31,7 +31,7 @@ function electronEntries(): Plugin {
           target: 'node20',
           sourcemap: true,
           rollupOptions: {
-            input: { main: 'electron/main.ts' },
+            input: { main: 'electron/main.ts', 'filtration-worker': 'electron/workers/filtration-worker.ts' },
             external: ['electron', ...nodeBuiltins],
             output: { format: 'es', entryFileNames: '[name].js' },
           },

@@ -12,12 +12,14 @@ export interface Figure {
 /** Common layout: white background, system font, compact margins. SVG only (no WebGL traces anywhere). */
 export function baseLayout(title: string, extra: Layout = {}): Layout {
   return {
-    title: { text: title, font: { size: 14 } },
+    title: { text: title, font: { size: 14 }, x: 0.01, xanchor: 'left' },
     margin: { l: 60, r: 20, t: 40, b: 50 },
     paper_bgcolor: '#ffffff',
     plot_bgcolor: '#ffffff',
     font: { family: 'system-ui, sans-serif', size: 12 },
     hovermode: 'closest',
+    // Legends sit above the plot, right-aligned, clear of the axis titles below.
+    legend: { orientation: 'h', x: 1, xanchor: 'right', y: 1.02, yanchor: 'bottom' },
     ...extra,
   };
 }

@@ -74,7 +74,6 @@ export function curveFigure(bands: CurveBand[], curve: string, groups: string[])
     layout: baseLayout(curveTitle(curve), {
       xaxis: { title: { text: 'filtration value' } },
       yaxis: { title: { text: curve === 'euler' ? 'χ' : 'mean' } },
-      legend: { orientation: 'h', y: -0.2 },
     }),
   };
 }

@@ -1,5 +1,6 @@
 /** The Regions view's logic: per node × measure group differences, their ranking, layouts and network summaries. */
 import type { NodeInfo, Table } from '../../../electron/api.ts';
+import { hedgesG } from '../../../electron/engine/stats/effect-size.ts';
 import { baseLayout, type Figure, type Trace } from './figure.ts';
 import type { NodeLayout } from './layout.ts';
 import { CORRECTED_P } from './groups.ts';
@@ -12,31 +13,13 @@ export interface NodeEffect {
   measure: string;
   /** Mean of group B minus mean of group A. */
   difference: number;
-  /** Hedges' g: the difference over the pooled SD, small-sample corrected. NaN when undefined. */
+  /** Hedges' g of B − A: the difference over the pooled SD, small-sample corrected. NaN when undefined. */
   g: number;
   nA: number;
   nB: number;
   /** Corrected p from the run's statistics, when they tested this node and measure. */
   pCorrected: number | null;
   significant: boolean;
-}
-
-/**
- * Hedges' g for two samples: (mean B − mean A) / pooled SD × (1 − 3 / (4(nA + nB) − 9)).
- * Hedges (1981), "Distribution theory for Glass's estimator of effect size", J. Educ. Stat. 6(2).
- *   hedgesG([1, 2, 3], [3, 4, 5]) → 2 × (1 − 3/15) = 1.6
- */
-export function hedgesG(a: number[], b: number[]): number {
-  const nA = a.length;
-  const nB = b.length;
-  if (nA < 2 || nB < 2) return NaN;
-  const mean = (x: number[]) => x.reduce((s, v) => s + v, 0) / x.length;
-  const mA = mean(a);
-  const mB = mean(b);
-  const ss = (x: number[], m: number) => x.reduce((s, v) => s + (v - m) ** 2, 0);
-  const pooled = Math.sqrt((ss(a, mA) + ss(b, mB)) / (nA + nB - 2));
-  if (!(pooled > 0)) return NaN;
-  return ((mB - mA) / pooled) * (1 - 3 / (4 * (nA + nB) - 9));
 }
 
 export function measuresOf(nodeScores: Table): string[] {
@@ -127,7 +110,8 @@ export function nodeEffects(
       network: c.network,
       measure: c.measure,
       difference: mean(c.b) - mean(c.a),
-      g: hedgesG(c.a, c.b),
+      // Hedges (1981) with the exact small-sample factor, from the statistics engine.
+      g: c.a.length >= 2 && c.b.length >= 2 ? hedgesG(c.b, c.a) : NaN,
       nA: c.a.length,
       nB: c.b.length,
       pCorrected: p,
@@ -202,7 +186,6 @@ export function nodeMapFigure(
         size: g.map((v) => 6 + 18 * (Number.isFinite(v) ? Math.abs(v) / maxAbs : 0)),
         color: g.map((v) => (Number.isFinite(v) ? v : 0)),
         colorscale: 'RdBu',
-        reversescale: true,
         cmin: -maxAbs,
         cmax: maxAbs,
         colorbar: { title: { text: 'g' }, thickness: 12 },

@@ -82,7 +82,7 @@ export class Session {
       if (this.stats) {
         const choice = this.stats.groupColumn;
         const valid = choice !== null && report.columns.some((c) => c.name === choice);
-        this.stats = { ...this.stats, groupColumn: valid ? choice : defaultGroupColumn(report.columns) };
+        this.stats = { ...this.stats, groupColumn: valid ? choice : defaultGroupColumn(report) };
       }
     });
   }

@@ -10,25 +10,49 @@ export interface ParticipantRow {
   warnings: number;
 }
 
-/** Columns that can split the cohort into groups: categorical with 2 to 12 levels. */
-export function groupColumnChoices(columns: ColumnInfo[]): string[] {
-  return columns
-    .filter((c) => c.kind === 'categorical' && (c.levels?.length ?? 0) >= 2 && (c.levels?.length ?? 0) <= 12)
+const ID_COLUMNS = new Set(['participant_id', 'subject', 'subject_id', 'id']);
+
+/** The distinct non-missing values of a column among the subjects, in order of first appearance. */
+export function columnLevels(report: CohortReport, column: string): string[] {
+  const seen = new Set<string>();
+  for (const s of report.subjects) {
+    const v = s.covariates[column];
+    if (v !== null && v !== undefined && v !== '') seen.add(String(v));
+  }
+  return [...seen];
+}
+
+/**
+ * Columns that can split the cohort into groups: categorical, with 2 to 12 levels among the
+ * subjects, and at least two subjects per level on average (an identifier never qualifies).
+ */
+export function groupColumnChoices(report: CohortReport): string[] {
+  return report.columns
+    .filter((c) => c.kind === 'categorical' && !ID_COLUMNS.has(c.name.toLowerCase()))
+    .filter((c) => {
+      const k = columnLevels(report, c.name).length;
+      return k >= 2 && k <= 12 && report.subjects.length >= 2 * k;
+    })
     .map((c) => c.name);
 }
 
 /** Columns that can enter the model as covariates: everything but the group column and identifiers. */
-export function covariateChoices(columns: ColumnInfo[], groupColumn: string | null): string[] {
-  return columns
-    .filter((c) => c.name !== groupColumn && c.name !== 'participant_id' && c.name !== 'subject')
-    .filter((c) => c.kind === 'numeric' || (c.levels?.length ?? 0) >= 2)
+export function covariateChoices(report: CohortReport, groupColumn: string | null): string[] {
+  return report.columns
+    .filter((c) => c.name !== groupColumn && !ID_COLUMNS.has(c.name.toLowerCase()))
+    .filter((c) => columnLevels(report, c.name).length >= 2)
     .map((c) => c.name);
 }
 
-/** The column the service picks when the user has not: 'group' or 'diagnosis' if present, else the first choice. */
-export function defaultGroupColumn(columns: ColumnInfo[]): string | null {
-  const choices = groupColumnChoices(columns);
+/** The column picked until the user picks one: 'group' (or 'diagnosis', …) if present, else the first choice. */
+export function defaultGroupColumn(report: CohortReport): string | null {
+  const choices = groupColumnChoices(report);
   return choices.find((c) => /^(group|diagnosis|dx|condition)$/i.test(c)) ?? choices[0] ?? null;
+}
+
+/** Participants-table columns shown beside the group (identifiers and the group itself left out). */
+export function shownColumns(columns: ColumnInfo[], groupColumn: string | null): string[] {
+  return columns.map((c) => c.name).filter((c) => c !== groupColumn && !ID_COLUMNS.has(c.toLowerCase()));
 }
 
 export function participantRows(

@@ -100,7 +100,6 @@ export function barcodeFigure(rows: IntervalRow[], selected: string | null): Fig
     layout: baseLayout('Barcode', {
       xaxis: { title: { text: 'filtration value' } },
       yaxis: { visible: false },
-      legend: { orientation: 'h', y: -0.2 },
       shapes: [
         {
           type: 'line',
@@ -166,8 +165,7 @@ export function diagramFigure(rows: IntervalRow[], selected: string | null): Fig
     data,
     layout: baseLayout('Persistence diagram', {
       xaxis: { title: { text: 'birth' }, range: [0, inf * 1.03] },
-      yaxis: { title: { text: 'death' }, range: [0, inf * 1.03], scaleanchor: 'x' },
-      legend: { orientation: 'h', y: -0.2 },
+      yaxis: { title: { text: 'death' }, range: [0, inf * 1.03] },
       annotations: [{ x: 0, y: inf, text: '∞', showarrow: false, xanchor: 'right', font: { size: 14 } }],
     }),
   };
@@ -204,8 +202,8 @@ export function heatmapFigure(s: SubjectResult, nodes: NodeInfo[]): Figure {
         z,
         x: labels,
         y: labels,
+        // Plotly's RdBu runs blue (low) to red (high): positive correlations red.
         colorscale: 'RdBu',
-        reversescale: true,
         zmin: -maxAbs,
         zmax: maxAbs,
         hovertemplate: '%{y} – %{x}: %{z:.3f}<extra></extra>',

@@ -1,0 +1,90 @@
+/**
+ * `npm start`: the desktop app where Electron's binary is installed; otherwise browser mode
+ * (same renderer, same service, over loopback HTTP), saying so in one line and printing the URL.
+ *
+ *   npm start                          sample cohort one click away, results under ~/Loopwise
+ *   npm start -- --cohort DIR --out DIR [--root DIR]… [--port N] [--browser]
+ */
+import { spawn, spawnSync } from 'node:child_process';
+import { existsSync, mkdirSync, readFileSync } from 'node:fs';
+import { homedir } from 'node:os';
+import { dirname, join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { parseArgs } from 'node:util';
+import { createLoopwiseService } from './service/service.ts';
+import { startWebServer } from './web.ts';
+
+const repo = resolve(dirname(fileURLToPath(import.meta.url)), '..');
+
+/** The Electron executable, found without loading the electron package (which would try to download it). */
+function electronBinary(root = repo): string | null {
+  const pkg = join(root, 'node_modules', 'electron');
+  const pathFile = join(pkg, 'path.txt');
+  if (!existsSync(pathFile)) return null;
+  const exe = join(pkg, 'dist', readFileSync(pathFile, 'utf8').trim());
+  return existsSync(exe) ? exe : null;
+}
+
+function ensureBuilt(): void {
+  if (existsSync(join(repo, 'dist', 'index.html')) && existsSync(join(repo, 'dist-electron', 'main.js')))
+    return;
+  console.log('Building the renderer (first start)…');
+  const r = spawnSync('npm', ['run', 'build'], {
+    cwd: repo,
+    stdio: 'inherit',
+    shell: process.platform === 'win32',
+  });
+  if (r.status !== 0) throw new Error('npm run build failed');
+}
+
+async function main(): Promise<void> {
+  const { values } = parseArgs({
+    options: {
+      cohort: { type: 'string' },
+      out: { type: 'string' },
+      root: { type: 'string', multiple: true },
+      port: { type: 'string' },
+      browser: { type: 'boolean' },
+    },
+  });
+  ensureBuilt();
+
+  const exe = values.browser ? null : electronBinary();
+  if (exe) {
+    const child = spawn(exe, [repo], { stdio: 'inherit' });
+    child.on('exit', (code) => process.exit(code ?? 0));
+    return;
+  }
+  if (!values.browser) {
+    console.log(
+      'Electron is not installed here (no binary under node_modules/electron/dist): starting browser mode.',
+    );
+  }
+
+  const sampleRoot = join(repo, 'sample-data');
+  const sample = join(sampleRoot, 'rhythm-study');
+  const outDir = resolve(values.out ?? join(homedir(), 'Loopwise'));
+  mkdirSync(outDir, { recursive: true });
+  const roots = [outDir, ...(values.root ?? []).map((r) => resolve(r))];
+  if (values.cohort) roots.push(resolve(values.cohort));
+  if (existsSync(sampleRoot)) roots.push(sampleRoot);
+
+  const api = createLoopwiseService({ cacheDir: join(homedir(), '.cache', 'loopwise') });
+  const server = await startWebServer(api, {
+    port: values.port ? Number(values.port) : 0,
+    roots,
+    staticDir: join(repo, 'dist'),
+    sampleCohort: values.cohort ? resolve(values.cohort) : existsSync(sample) ? sample : null,
+    defaultOutDir: outDir,
+    version: JSON.parse(readFileSync(join(repo, 'package.json'), 'utf8')).version,
+  });
+  console.log(`Loopwise is running at ${server.url}`);
+  const stop = () => void server.close().then(() => process.exit(0));
+  process.on('SIGINT', stop);
+  process.on('SIGTERM', stop);
+}
+
+main().catch((e: unknown) => {
+  console.error(`loopwise: ${e instanceof Error ? e.message : String(e)}`);
+  process.exit(1);
+});

@@ -1,0 +1,122 @@
+/** The views rendered (Svelte 5 in jsdom) over the renderer's Session and a stand-in service. */
+import { fireEvent, render, screen, waitFor, within } from '@testing-library/svelte';
+import { describe, expect, it } from 'vitest';
+import type { LoopwiseDoor } from '../../electron/web-client.ts';
+import App from '../../renderer/src/App.svelte';
+import { Session } from '../../renderer/src/lib/session.svelte.ts';
+import { createFakeApi, type FakeApi } from '../web/fake-api.ts';
+
+function door(api: FakeApi): LoopwiseDoor {
+  return {
+    ...api,
+    info: async () => ({
+      mode: 'web',
+      version: 'test',
+      sampleCohort: '/data/sample',
+      defaultOutDir: '/data/out',
+      roots: ['/data'],
+    }),
+  };
+}
+
+async function openApp() {
+  const api = createFakeApi({ root: '/data/sample' });
+  const session = new Session(door(api));
+  render(App, { session });
+  await session.init();
+  return { api, session };
+}
+
+describe('the app shell', () => {
+  it('says it is a research tool, not a diagnostic device, and keeps result views disabled until a run', async () => {
+    await openApp();
+    expect(screen.getByRole('note').textContent).toMatch(/research tool, not a diagnostic device/);
+    const nav = within(screen.getByRole('navigation'));
+    expect(nav.getByRole('button', { name: 'Study' })).toHaveProperty('disabled', false);
+    for (const name of ['Analysis', 'Groups', 'Regions', 'Subject', 'Export']) {
+      expect(nav.getByRole('button', { name })).toHaveProperty('disabled', true);
+    }
+  });
+});
+
+describe('Study', () => {
+  it('opens the sample cohort in one click and shows N, the QC report and the participants', async () => {
+    const { api, session } = await openApp();
+    await fireEvent.click(screen.getByRole('button', { name: 'Open the sample cohort' }));
+    await waitFor(() => expect(session.report).not.toBeNull());
+    expect(api.calls.find((c) => c.method === 'openCohort')?.args).toEqual([{ dir: '/data/sample' }]);
+    const summary = screen.getByTestId('cohort-summary').textContent!;
+    expect(summary).toMatch(/10\s*subjects/);
+    expect(summary).toMatch(/16\s*regions \(N\)/);
+    expect(summary).toMatch(/5\s*control/);
+    const qc = within(screen.getByTestId('qc-report'));
+    expect(qc.getAllByRole('row')).toHaveLength(3);
+    expect(qc.getByText('sub-10.tsv: 16 rows but 15 columns').closest('tr')?.className).toContain(
+      'error-row',
+    );
+
+    await fireEvent.change(screen.getByRole('combobox', { name: 'Show' }), { target: { value: 'warning' } });
+    expect(within(screen.getByTestId('qc-report')).getAllByRole('row')).toHaveLength(2);
+    await fireEvent.input(screen.getByRole('searchbox'), { target: { value: 'sub-10' } });
+    expect(screen.queryByTestId('qc-report')!.querySelectorAll('tbody tr')).toHaveLength(0);
+  });
+
+  it('chooses the group column and covariates into the statistics settings', async () => {
+    const { session } = await openApp();
+    await fireEvent.click(screen.getByRole('button', { name: 'Open the sample cohort' }));
+    await waitFor(() => expect(session.report).not.toBeNull());
+    expect(session.stats?.groupColumn).toBe('group');
+    await fireEvent.click(screen.getByRole('checkbox', { name: 'age' }));
+    expect(session.stats?.covariates).toEqual(['age']);
+    await fireEvent.change(screen.getByRole('combobox', { name: 'Group column' }), {
+      target: { value: 'sex' },
+    });
+    expect(session.stats?.groupColumn).toBe('sex');
+    expect(screen.queryByRole('checkbox', { name: 'sex' })).toBeNull();
+  });
+});
+
+describe('Analysis and Export', () => {
+  it('runs with a progress bar, lists the failures, then exports the tables to the chosen folder', async () => {
+    const { api, session } = await openApp();
+    await fireEvent.click(screen.getByRole('button', { name: 'Open the sample cohort' }));
+    await waitFor(() => expect(session.report).not.toBeNull());
+    await fireEvent.click(within(screen.getByRole('navigation')).getByRole('button', { name: 'Analysis' }));
+
+    const seed = screen.getByRole('spinbutton', { name: 'Seed' });
+    await fireEvent.change(seed, { target: { value: '42' } });
+    await fireEvent.click(screen.getByRole('button', { name: 'Run analysis' }));
+    await waitFor(
+      () => expect(screen.getByTestId('run-summary').textContent).toMatch(/Run done: 9 computed/),
+      {
+        timeout: 5000,
+      },
+    );
+    const started = api.calls.find((c) => c.method === 'startRun')!.args[0] as { stats: { seed: number } };
+    expect(started.stats.seed).toBe(42);
+    expect(screen.getByRole('progressbar').getAttribute('aria-valuenow')).toBe('100');
+    expect(within(screen.getByTestId('run-failures')).getByText('not square')).toBeTruthy();
+
+    await fireEvent.click(within(screen.getByRole('navigation')).getByRole('button', { name: 'Export' }));
+    const out = screen.getByRole('textbox', { name: 'Output folder' }) as HTMLInputElement;
+    expect(out.value).toBe('/data/out');
+    await fireEvent.input(out, { target: { value: '/data/out/run1' } });
+    await fireEvent.click(screen.getByRole('button', { name: 'Export tables' }));
+    await waitFor(() =>
+      expect(screen.getByTestId('export-files').textContent).toContain('/data/out/run1/features.tsv'),
+    );
+    expect(api.calls.at(-1)).toEqual({ method: 'exportRun', args: ['run-1', '/data/out/run1', false] });
+  });
+
+  it('refuses to start with settings the service would reject, and says why', async () => {
+    const { session } = await openApp();
+    await fireEvent.click(screen.getByRole('button', { name: 'Open the sample cohort' }));
+    await waitFor(() => expect(session.report).not.toBeNull());
+    await fireEvent.click(within(screen.getByRole('navigation')).getByRole('button', { name: 'Analysis' }));
+    await fireEvent.change(screen.getByRole('spinbutton', { name: 'Grid points' }), {
+      target: { value: '1' },
+    });
+    expect(screen.getByRole('button', { name: 'Run analysis' })).toHaveProperty('disabled', true);
+    expect(screen.getByText('The grid needs between 2 and 10000 points.')).toBeTruthy();
+  });
+});
