@@ -254,6 +254,7 @@ export async function analyzeCommand(args: string[], io: CliIO): Promise<number>
     ({ runId } = await service.startRun(req));
   } catch (e) {
     unlisten();
+    await service.close();
     io.err(`${prefix}: ${e instanceof Error ? e.message : String(e)}\n`);
     // A refused output folder, a cohort that cannot be opened, invalid settings: all input errors.
     return 2;
@@ -281,5 +282,6 @@ export async function analyzeCommand(args: string[], io: CliIO): Promise<number>
   } finally {
     process.off('SIGINT', onSigint);
     unlisten();
+    await service.close();
   }
 }

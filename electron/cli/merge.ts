@@ -49,5 +49,7 @@ export async function mergeCommand(args: string[], io: CliIO): Promise<number> {
   } catch (e) {
     io.err(`${prefix}: ${e instanceof Error ? e.message : String(e)}\n`);
     return e instanceof OutDirError ? 2 : 1;
+  } finally {
+    await service.close();
   }
 }

@@ -8,9 +8,12 @@ import { mkdir, readFile, readdir, stat, writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import { removeStaleTemps, writeFileAtomic } from './atomic.ts';
 
+/** Bumped when the entries' layout changes, so older entries are recomputed rather than misread. */
+export const CACHE_FORMAT = 2;
+
 /** One subject's filtration as cached. Node indices refer to the subject's matrix as read (before dropRegions). */
 export interface CachedFiltration {
-  format: 1;
+  format: typeof CACHE_FORMAT;
   key: string;
   engineVersion: string;
   matrixSha256: string;
@@ -22,6 +25,8 @@ export interface CachedFiltration {
   diagrams: Array<Array<[number, number | null]>>;
   /** Aligned with diagrams[1] when representatives were asked for, else null. */
   representatives: Array<{ nodes: number[]; edges: Array<[number, number]> }> | null;
+  /** The H0 merge tree in filtration order: [value, edge i, edge j, survivor, absorbed] (see MergeEvent). */
+  mergeTree: Array<[number, number, number, number, number]>;
 }
 
 const README = `This folder holds Loopwise's cached filtrations: one file per subject matrix and
@@ -59,7 +64,7 @@ export class FiltrationCache {
     }
     try {
       const e = JSON.parse(text) as CachedFiltration;
-      return e.format === 1 && e.key === key && Array.isArray(e.diagrams) ? e : null;
+      return e.format === CACHE_FORMAT && e.key === key && Array.isArray(e.diagrams) ? e : null;
     } catch {
       return null;
     }

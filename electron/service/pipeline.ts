@@ -10,6 +10,7 @@ import type { AnalysisSettings, CohortReport, SubjectEntry } from '../api.ts';
 import { FiltrationError } from '../workers/pool.ts';
 import type { WorkerPool } from '../workers/pool.ts';
 import type { PackedFiltration } from '../workers/filtration.ts';
+import { CACHE_FORMAT } from './cache.ts';
 import type { CachedFiltration, FiltrationCache } from './cache.ts';
 import type { CohortSource } from './cohort-source.ts';
 import { sha256File, sha256Matrix } from './hash.ts';
@@ -66,8 +67,13 @@ export function unpack(p: PackedFiltration, key: string, matrixSha256: string): 
       representatives.push({ nodes, edges });
     }
   }
+  const mergeTree: CachedFiltration['mergeTree'] = [];
+  for (let k = 0; k < p.mergeTree.length; k += 5) {
+    const t = p.mergeTree;
+    mergeTree.push([t[k], t[k + 1], t[k + 2], t[k + 3], t[k + 4]]);
+  }
   return {
-    format: 1,
+    format: CACHE_FORMAT,
     key,
     engineVersion: ENGINE_VERSION,
     matrixSha256,
@@ -76,6 +82,7 @@ export function unpack(p: PackedFiltration, key: string, matrixSha256: string): 
     thresholdSource: p.thresholdSource,
     diagrams,
     representatives,
+    mergeTree,
   };
 }
 

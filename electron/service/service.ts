@@ -116,9 +116,24 @@ export class LoopwiseService implements LoopwiseApi {
   private readonly listeners = new Set<(e: ProgressEvent) => void>();
   private readonly runs = new Map<string, RunState>();
   private nextRun = 1;
+  /** Kept between runs so a second run does not pay for starting the threads again. */
+  private pool: WorkerPool | null = null;
 
   constructor(options: ServiceOptions = {}) {
     this.options = options;
+  }
+
+  private poolOfSize(size: number): WorkerPool {
+    if (this.pool && !this.pool.isClosed && this.pool.size === size) return this.pool;
+    void this.pool?.terminate();
+    this.pool = new WorkerPool(size, this.options.workerEntry);
+    return this.pool;
+  }
+
+  /** Stops the worker threads; a door that exits (the CLI) must call it, since live workers keep the process alive. */
+  async close(): Promise<void> {
+    await this.pool?.terminate();
+    this.pool = null;
   }
 
   private openSource(req: OpenCohortRequest): Promise<CohortSource> {
@@ -277,10 +292,7 @@ export class LoopwiseService implements LoopwiseApi {
     };
 
     try {
-      const pool = new WorkerPool(
-        req.workers ?? this.options.workers ?? defaultPoolSize(),
-        this.options.workerEntry,
-      );
+      const pool = this.poolOfSize(req.workers ?? this.options.workers ?? defaultPoolSize());
       state.pool = pool;
       progress('filtrations', 0, share.length);
       let records: Map<number, SubjectRecord>;
@@ -310,7 +322,6 @@ export class LoopwiseService implements LoopwiseApi {
           },
         });
       } finally {
-        await pool.terminate();
         state.pool = null;
       }
       if (state.cancelRequested) return await finishSummary('cancelled', []);

@@ -39,6 +39,8 @@ export interface PackedFiltration {
   repNodes: Int32Array | null;
   repEdgeStart: Int32Array | null;
   repEdges: Int32Array | null;
+  /** The H0 merge tree, 5 numbers per merge: value, edge i, edge j, survivor, absorbed. */
+  mergeTree: Float64Array;
 }
 
 export interface FiltrationFailure {
@@ -95,6 +97,13 @@ export function runFiltration(task: FiltrationTask): PackedFiltration {
     });
     [repNodeStart, repNodes, repEdgeStart, repEdges] = [nodeStart, nodes, edgeStart, edges];
   }
+  const mergeTree = new Float64Array(5 * r.mergeTree.length);
+  r.mergeTree.forEach((ev, k) => {
+    mergeTree.set(
+      [ev.value, kept[ev.edge[0]], kept[ev.edge[1]], kept[ev.survivor], kept[ev.absorbed]],
+      5 * k,
+    );
+  });
   return {
     taskId: task.taskId,
     n: matrix.n,
@@ -106,11 +115,20 @@ export function runFiltration(task: FiltrationTask): PackedFiltration {
     repNodes,
     repEdgeStart,
     repEdges,
+    mergeTree,
   };
 }
 
 /** The buffers of a packed result, for postMessage's transfer list. */
 export function transferList(p: PackedFiltration): ArrayBuffer[] {
-  const arrays = [...p.births, ...p.deaths, p.repNodeStart, p.repNodes, p.repEdgeStart, p.repEdges];
+  const arrays = [
+    ...p.births,
+    ...p.deaths,
+    p.repNodeStart,
+    p.repNodes,
+    p.repEdgeStart,
+    p.repEdges,
+    p.mergeTree,
+  ];
   return arrays.filter((a): a is Float64Array | Int32Array => a !== null).map((a) => a.buffer as ArrayBuffer);
 }

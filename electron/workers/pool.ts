@@ -7,7 +7,8 @@
  *
  * A worker that dies (out of memory, a crash in native code) fails only its own task, with the
  * reason, and is replaced. terminate() stops every worker at once: a cancelled run does not wait
- * for the filtrations in flight.
+ * for the filtrations in flight. A live pool keeps the process alive (even unref'd workers do, once
+ * they have registered the tsx loader), so whoever owns it must terminate it when done.
  */
 import { availableParallelism } from 'node:os';
 import { Worker } from 'node:worker_threads';
@@ -98,6 +99,10 @@ export class WorkerPool {
       }
       await new Promise<void>((resolve) => this.waiting.push(resolve));
     }
+  }
+
+  get isClosed(): boolean {
+    return this.closed;
   }
 
   /** Stops every worker now; tasks in flight reject. */

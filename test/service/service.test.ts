@@ -1,0 +1,249 @@
+/**
+ * The cohort run service in-process: identical outputs for any number of workers, shards + merge
+ * equal to one run, the cache (reuse when only statistics settings change, recompute when the
+ * transform changes), bad and excluded subjects, the output-folder rules, and cancellation.
+ */
+import { mkdtempSync, readFileSync, rmSync, writeFileSync, existsSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { ProgressEvent, StartRunRequest } from '../../electron/api.ts';
+import { OutDirError, createLoopwiseService } from '../../electron/service/service.ts';
+import type { CohortSource } from '../../electron/service/cohort-source.ts';
+import { defaultAnalysisSettings, defaultStatsSettings } from '../../electron/service/settings.ts';
+import { correlationMatrix, listFiles, outputs, writeCohort } from './support.ts';
+
+let root: string;
+let cohort: string;
+let ids: string[];
+
+beforeAll(() => {
+  root = mkdtempSync(join(tmpdir(), 'loopwise-service-'));
+  cohort = join(root, 'cohort');
+  // Subject 3 (sub-004) has a corrupt cell: it must fail with a reason, and the run go on.
+  ids = writeCohort(cohort, { subjects: 10, n: 36, seed: 11, broken: [3] });
+});
+afterAll(async () => {
+  await shared.close();
+  rmSync(root, { recursive: true, force: true });
+});
+
+function request(outDir: string | null, extra: Partial<StartRunRequest> = {}): StartRunRequest {
+  return {
+    cohort: { dir: cohort },
+    settings: defaultAnalysisSettings(),
+    stats: defaultStatsSettings(),
+    outDir,
+    ...extra,
+  };
+}
+
+// One service for most runs: its worker pool is kept between runs of the same size.
+const shared = createLoopwiseService();
+
+async function run(outDir: string | null, extra: Partial<StartRunRequest> = {}) {
+  const service = shared;
+  const events: ProgressEvent[] = [];
+  const unlisten = service.onProgress((e) => events.push(e));
+  const before = { ...service.counters };
+  const { runId } = await service.startRun(request(outDir, extra));
+  const summary = await service.waitForRun(runId);
+  unlisten();
+  const counters = {
+    filtrations: service.counters.filtrations - before.filtrations,
+    reused: service.counters.reused - before.reused,
+  };
+  return { service, runId, summary, events, counters };
+}
+
+describe('cohort runs', () => {
+  it('writes the same tables with 1, 2 and 4 workers, and records the broken subject', async () => {
+    const outs: Array<Record<string, string>> = [];
+    for (const workers of [1, 2, 4]) {
+      const dir = join(root, `w${workers}`);
+      const { summary, events } = await run(dir, { workers });
+      expect(summary.status).toBe('done');
+      expect(summary.computed).toBe(9);
+      expect(summary.failures.map((f) => f.subject)).toEqual(['sub-004']);
+      expect(summary.failures[0].reason).toMatch(/sub-004_conn\.csv: .*'oops'/);
+      expect(events.at(-1)?.phase).toBe('done');
+      expect(events.filter((e) => e.phase === 'filtrations').at(-1)?.done).toBe(10);
+      outs.push(outputs(dir));
+    }
+    expect(Object.keys(outs[0])).toEqual(['intervals.tsv', 'provenance.json', 'subjects.tsv']);
+    expect(outs[1]).toEqual(outs[0]);
+    expect(outs[2]).toEqual(outs[0]);
+
+    // The tables say what happened to every subject, in cohort order.
+    const subjects = outs[0]['subjects.tsv'].trim().split('\n').slice(1);
+    expect(subjects.map((l) => l.split('\t')[0])).toEqual(ids);
+    expect(subjects[3].split('\t')[1]).toBe('failed');
+    const intervals = outs[0]['intervals.tsv'].trim().split('\n');
+    expect(intervals[0]).toBe('participant_id\tdimension\tbirth\tdeath\tnodes');
+    // One essential H0 class per analysed subject, with death inf; every H1 row names its cycle's nodes.
+    const rows = intervals.slice(1).map((l) => l.split('\t'));
+    expect(rows.filter((r) => r[1] === '0' && r[3] === 'inf').length).toBe(9);
+    for (const r of rows.filter((r) => r[1] === '1')) expect(r[4]).toMatch(/^\d+( \d+){2,}$/);
+    const prov = JSON.parse(outs[0]['provenance.json']);
+    expect(prov.inputFiles).toHaveLength(10);
+    expect(prov.inputFiles[0]).toMatchObject({ subject: 'sub-001', file: 'sub-001_conn.csv' });
+    expect(prov.inputFiles[0].sha256).toMatch(/^[0-9a-f]{64}$/);
+    expect(Object.keys(prov.inputHashes)).toHaveLength(9);
+  });
+
+  it('shards 1/3, 2/3, 3/3 then merge write what one run writes', async () => {
+    const single = join(root, 'single');
+    await run(single, { workers: 2 });
+    const sharded = join(root, 'sharded');
+    const computed: number[] = [];
+    for (const index of [2, 1, 3]) {
+      const { summary } = await run(sharded, { workers: 1, shard: { index, count: 3 } });
+      expect(summary.status).toBe('done');
+      computed.push(summary.computed + summary.failures.length);
+      // A shard writes no tables, only its part of the cache and its record.
+      expect(Object.keys(outputs(sharded))).toEqual([]);
+    }
+    expect(computed.sort()).toEqual([3, 3, 4]);
+    const merged = await shared.mergeShards(sharded);
+    expect(merged.analysed).toBe(9);
+    expect(outputs(sharded)).toEqual(outputs(single));
+  });
+
+  it('refuses to merge when a shard is missing', async () => {
+    const dir = join(root, 'partial');
+    await run(dir, { workers: 1, shard: { index: 1, count: 2 } });
+    await expect(shared.mergeShards(dir)).rejects.toThrow(/shard 2\/2 not finished/);
+  });
+
+  it('reuses every filtration when only statistics settings change, recomputes when the transform does', async () => {
+    const cacheDir = join(root, 'shared-cache');
+    const first = await run(join(root, 'c1'), { cacheDir, workers: 2 });
+    expect(first.counters.filtrations).toBe(9);
+
+    const stats = { groupColumn: 'group', covariates: ['age'], permutations: 99, seed: 7 };
+    const settings = { ...defaultAnalysisSettings(), persistenceFloor: 0.05, gridPoints: 50 };
+    const second = await run(join(root, 'c2'), { cacheDir, workers: 2, stats, settings });
+    expect(second.counters.filtrations).toBe(0);
+    expect(second.counters.reused).toBe(9);
+    expect(second.summary.reused).toBe(9);
+    // Same filtrations, so the same intervals; the provenance records the new statistics settings.
+    expect(outputs(join(root, 'c2'))['intervals.tsv']).toBe(outputs(join(root, 'c1'))['intervals.tsv']);
+    expect(JSON.parse(outputs(join(root, 'c2'))['provenance.json']).stats).toEqual(stats);
+
+    const third = await run(join(root, 'c3'), {
+      cacheDir,
+      workers: 2,
+      settings: { ...defaultAnalysisSettings(), transform: 'sqrt' },
+    });
+    expect(third.counters.filtrations).toBe(9);
+    expect(third.counters.reused).toBe(0);
+  });
+
+  it('refuses an output folder with files unless forced, and never touches the user’s own files', async () => {
+    const dir = join(root, 'user');
+    await run(dir, { workers: 1 });
+    await expect(shared.startRun(request(dir, { workers: 1 }))).rejects.toThrow(OutDirError);
+    writeFileSync(join(dir, 'notes.txt'), 'mine');
+    const before = readFileSync(join(dir, 'intervals.tsv'), 'utf8');
+    const { summary } = await run(dir, { workers: 1, force: true });
+    expect(summary.status).toBe('done');
+    expect(summary.computed).toBe(0);
+    expect(readFileSync(join(dir, 'notes.txt'), 'utf8')).toBe('mine');
+    expect(readFileSync(join(dir, 'intervals.tsv'), 'utf8')).toBe(before);
+    const other = join(root, 'other');
+    await run(other, { workers: 1 });
+    writeFileSync(join(other, 'notes.txt'), 'mine');
+    await expect(shared.startRun(request(other))).rejects.toThrow(/notes\.txt/);
+  });
+});
+
+/** An in-memory cohort: no files at all; subject 2 is excluded by the cohort check. */
+function memorySource(subjects: number, n: number): CohortSource {
+  return {
+    report: {
+      root: '/in-memory',
+      n,
+      subjects: Array.from({ length: subjects }, (_, i) => ({
+        id: `m${i}`,
+        source: { file: `/in-memory/m${i}.csv` },
+        covariates: {},
+        usable: i !== 2,
+      })),
+      columns: [],
+      nodes: null,
+      findings: [
+        {
+          severity: 'error',
+          code: 'nan-row',
+          file: 'm2.csv',
+          subject: 'm2',
+          message: 'm2.csv: row 5 is all NaN',
+        },
+      ],
+      deadRegions: [],
+    },
+    load: async (entry) => ({ n, values: correlationMatrix(n, 2 * n, Number(entry.id.slice(1)) + 1) }),
+  };
+}
+
+describe('in-memory cohorts', () => {
+  it('lists excluded subjects with the reason and answers result queries', async () => {
+    const cacheDir = join(root, 'mem-cache');
+    const service = createLoopwiseService({ openSource: async () => memorySource(5, 30), cacheDir });
+    const { runId } = await service.startRun(request(null, { workers: 2 }));
+    const summary = await service.waitForRun(runId);
+    expect(summary.excluded).toEqual([{ subject: 'm2', reason: 'm2.csv: row 5 is all NaN' }]);
+    expect(summary.analysed).toBe(4);
+    const results = await service.cohortResults(runId);
+    expect(results?.features.rows.map((r) => r[1])).toEqual([
+      'analysed',
+      'analysed',
+      'excluded',
+      'analysed',
+      'analysed',
+    ]);
+    const subject = await service.subjectResult(runId, 'm1');
+    expect(subject?.matrix).toHaveLength(900);
+    expect(subject?.representatives.length).toBe(subject?.diagrams[1].length);
+    for (const rep of subject?.representatives ?? []) {
+      // A mod-2 cycle: every node of the representative has even degree in its edges.
+      const degree = new Map<number, number>();
+      for (const [i, j] of rep.edges) for (const v of [i, j]) degree.set(v, (degree.get(v) ?? 0) + 1);
+      for (const d of degree.values()) expect(d % 2).toBe(0);
+    }
+    const files = await service.exportRun(runId, join(root, 'mem-export'), false);
+    expect(files.files).toEqual(['intervals.tsv', 'subjects.tsv', 'provenance.json']);
+    await service.close();
+  });
+
+  it('cancels: stops early, keeps committed subjects, and a re-run reuses them', async () => {
+    const cacheDir = join(root, 'cancel-cache');
+    const service = createLoopwiseService({ openSource: async () => memorySource(40, 48), cacheDir });
+    let runId = '';
+    let cancelled = false;
+    service.onProgress((e) => {
+      if (!cancelled && e.phase === 'filtrations' && e.done >= 4) {
+        cancelled = true;
+        void service.cancelRun(runId);
+      }
+    });
+    ({ runId } = await service.startRun(request(join(root, 'cancelled'), { workers: 2 })));
+    const summary = await service.waitForRun(runId);
+    expect(summary.status).toBe('cancelled');
+    // Cancelled once 4 subjects were done, one of them the excluded m2.
+    expect(summary.computed).toBeGreaterThanOrEqual(3);
+    expect(summary.computed).toBeLessThan(39);
+    // No tables were written for a cancelled run.
+    expect(existsSync(join(root, 'cancelled', 'intervals.tsv'))).toBe(false);
+    expect(listFiles(join(root, 'cancelled')).some((f) => f.includes('loopwise-tmp'))).toBe(false);
+
+    const again = createLoopwiseService({ openSource: async () => memorySource(40, 48), cacheDir });
+    const r = await again.startRun(request(join(root, 'cancelled'), { workers: 2 }));
+    const s2 = await again.waitForRun(r.runId);
+    expect(s2.status).toBe('done');
+    expect(s2.reused).toBe(summary.computed);
+    expect(s2.computed + s2.reused).toBe(39);
+    await service.close();
+    await again.close();
+  });
+});
