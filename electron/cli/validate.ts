@@ -2,6 +2,7 @@
  * `loopwise validate COHORT_DIR [options]`: reads every subject's matrix once and prints the QC
  * report. Exit code 0 when at least one subject is usable, 1 when none is, 2 on a usage error.
  */
+import { resolve } from 'node:path';
 import type { CohortReport, QcFinding } from '../api.ts';
 import type { CliIO } from '../cli.ts';
 import type { InputKind } from '../engine/transform.ts';
@@ -161,8 +162,9 @@ export async function validateCommand(args: string[], io: CliIO): Promise<number
     report = await openCohort(
       {
         dir: a.dir,
-        participants: a.participants,
-        nodes: a.nodes,
+        // Paths on the command line are relative to the working folder, not to COHORT_DIR.
+        participants: a.participants === undefined ? undefined : resolve(a.participants),
+        nodes: a.nodes === undefined ? undefined : resolve(a.nodes),
         variable: a.variable,
         timeSeries: a.timeSeries,
         fileColumn: a.fileColumn,

@@ -145,8 +145,13 @@ export async function openCohort(
 
   // ---- participants and nodes tables ----
   let participantsFile: string | null = null;
-  if (req.participants) participantsFile = resolve(root, req.participants);
-  else {
+  // Tables named explicitly must exist: a typo there is the caller's mistake, not the cohort's.
+  if (req.participants) {
+    participantsFile = resolve(root, req.participants);
+    if (!(await exists(participantsFile))) {
+      throw new InputFileError(participantsFile, 'no such participants table', 'no-participants-file');
+    }
+  } else {
     for (const name of ['participants.tsv', 'participants.csv']) {
       if (await exists(join(root, name))) {
         participantsFile = join(root, name);
@@ -155,6 +160,9 @@ export async function openCohort(
     }
   }
   let nodesFile: string | null = req.nodes ? resolve(root, req.nodes) : null;
+  if (nodesFile && !(await exists(nodesFile))) {
+    throw new InputFileError(nodesFile, 'no such node table', 'no-nodes-file');
+  }
   if (!nodesFile) {
     for (const name of ['nodes.tsv', 'nodes.csv']) {
       if (await exists(join(root, name))) {

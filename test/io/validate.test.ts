@@ -93,5 +93,14 @@ describe('loopwise validate', () => {
     expect(missing.code).toBe(2);
     expect(missing.err).toMatch(/nope: no such folder/);
     expect((await run(['validate', '--help'])).code).toBe(0);
+    const noTable = await run([
+      'validate',
+      join(FIX, 'cohort-bids'),
+      '--participants',
+      join(FIX, 'missing.tsv'),
+    ]);
+    expect(noTable.code).toBe(2);
+    expect(noTable.err).toMatch(/missing\.tsv: no such participants table/);
+    expect((await run(['validate', join(FIX, 'cohort-bids'), '--nodes', 'nope.tsv'])).code).toBe(2);
   });
 });
