@@ -7,7 +7,7 @@
  */
 import { app, BrowserWindow, dialog, ipcMain, session, shell, type IpcMainInvokeEvent } from 'electron';
 import { existsSync, mkdirSync } from 'node:fs';
-import { dirname, join } from 'node:path';
+import { dirname, join, sep } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import type { LoopwiseApi } from './api.ts';
 import { createLoopwiseService } from './service/service.ts';
@@ -138,13 +138,15 @@ async function boot(): Promise<void> {
   const defaultOutDir = join(app.getPath('documents'), 'Loopwise');
   mkdirSync(defaultOutDir, { recursive: true });
   const sample = [
-    join(process.resourcesPath ?? '', 'sample-data', 'cohort'),
-    join(appRoot, 'sample-data', 'cohort'),
+    join(process.resourcesPath ?? '', 'sample-data', 'rhythm-study'),
+    join(appRoot, 'sample-data', 'rhythm-study'),
   ].find((p) => existsSync(p));
+  // Worker threads cannot start from inside the asar archive: the build unpacks dist-electron/.
+  const workerDir = here.replace(`app.asar${sep}`, `app.asar.unpacked${sep}`);
   // The engine runs on worker threads; the build bundles their entry next to this file.
   const api = createLoopwiseService({
     cacheDir: join(app.getPath('userData'), 'cache'),
-    workerEntry: pathToFileURL(join(here, 'filtration-worker.js')),
+    workerEntry: pathToFileURL(join(workerDir, 'filtration-worker.js')),
   });
   startElectronApp(api, {
     indexHtml: join(appRoot, 'dist', 'index.html'),

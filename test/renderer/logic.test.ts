@@ -422,3 +422,29 @@ describe('Exports', () => {
     expect(fileStem('regions-strength/axial: x')).toBe('regions-strength-axial-x');
   });
 });
+
+describe('the statistics stage’s table layout', () => {
+  // Columns as electron/engine/stats/tables.ts writes stats.tsv.
+  const stats: Table = {
+    columns: ['family', 'feature', 'node_or_point', 'contrast', 'p_uncorrected', 'p_fwer', 'q_fdr'],
+    rows: [
+      ['features', 'h1_count', null, 'training - waitlist', 0.01, 0.03, 0.02],
+      ['nodes:strength', 'strength', 'L1', 'training - waitlist', 0.001, 0.004, 0.002],
+      ['nodes:strength', 'strength', 'L2', 'training - waitlist', 0.2, 0.6, 0.4],
+      ['curve:betti1', 'betti1', 0.5, 'training - waitlist', 0.01, 0.04, 0.03],
+    ],
+  };
+
+  it('reads node rows by family, measure and label, with the FWER-corrected p', () => {
+    expect([...nodePValues(stats, ['waitlist', 'training'])]).toEqual([
+      ['strength\u0000L1', 0.004],
+      ['strength\u0000L2', 0.6],
+    ]);
+  });
+
+  it('shows beside a feature only its own scalar-feature rows', () => {
+    expect(statsFor(stats, 'h1_count')).toHaveLength(1);
+    expect(statsFor(stats, 'strength')).toEqual([]);
+    expect(statsFor(stats, 'betti1')).toEqual([]);
+  });
+});

@@ -136,17 +136,22 @@ export function distributionFigure(
   };
 }
 
-/** The stats rows about one feature (all tests of it), as column → value. */
+/**
+ * The stats rows about one scalar feature (every contrast), as column → value. Node and curve
+ * families (which reuse the measure's name as their feature) are left out.
+ */
 export function statsFor(stats: Table | null, feature: string): Array<Record<string, Cell>> {
   if (!stats) return [];
   const col = findColumn(stats, ['feature', 'measure', 'name', 'variable']);
   if (!col) return [];
-  return records(stats).filter((r) => r[col] === feature);
+  const family = findColumn(stats, ['family']);
+  return records(stats).filter((r) => r[col] === feature && (!family || r[family] === 'features'));
 }
 
 /** Columns of a stats table that hold a corrected p-value, in order of preference. */
 export const CORRECTED_P = [
   'p_fwer',
+  'q_fdr',
   'p_fdr',
   'p_corrected',
   'p_adjusted',

@@ -29,24 +29,39 @@ export function measuresOf(nodeScores: Table): string[] {
 }
 
 /**
- * Corrected p per (measure, node label) from the stats table, for node-level rows. Two layouts are
- * read: columns 'measure' and 'node'/'label'; or a 'feature' column naming 'measure:label' (or
- * 'measure[label]' / 'measure/label').
+ * Corrected p per (measure, node label) from the stats table's node-level rows. Layouts read:
+ * the statistics stage's (family 'nodes:<measure>', feature = measure, node_or_point = label);
+ * columns 'measure' and 'node'/'label'; or a feature named 'measure:label'. With several contrasts,
+ * the one naming both groups is used.
  */
-export function nodePValues(stats: Table | null): Map<string, number> {
+export function nodePValues(
+  stats: Table | null,
+  groups: [string, string] | null = null,
+): Map<string, number> {
   const out = new Map<string, number>();
   if (!stats) return out;
   const pCol = findColumn(stats, CORRECTED_P);
   if (!pCol) return out;
+  const familyCol = findColumn(stats, ['family']);
   const measureCol = findColumn(stats, ['measure']);
-  const nodeCol = findColumn(stats, ['label', 'node', 'region']);
+  const nodeCol = findColumn(stats, ['node_or_point', 'label', 'node', 'region']);
   const featureCol = findColumn(stats, ['feature', 'name', 'variable']);
-  for (const r of records(stats)) {
+  const contrastCol = findColumn(stats, ['contrast']);
+  let rows = records(stats);
+  if (contrastCol && groups) {
+    const both = rows.filter((r) => groups.every((g) => String(r[contrastCol] ?? '').includes(g)));
+    if (both.length) rows = both;
+  }
+  for (const r of rows) {
     const p = asNumber(r[pCol]);
     if (p === null) continue;
-    if (measureCol && nodeCol && r[measureCol] !== null && r[nodeCol] !== null) {
+    const family = familyCol ? String(r[familyCol] ?? '') : '';
+    if (familyCol && nodeCol && family.startsWith('nodes:')) {
+      const measure = featureCol && r[featureCol] !== null ? String(r[featureCol]) : family.slice(6);
+      if (!out.has(`${measure}\u0000${r[nodeCol]}`)) out.set(`${measure}\u0000${r[nodeCol]}`, p);
+    } else if (!familyCol && measureCol && nodeCol && r[measureCol] !== null && r[nodeCol] !== null) {
       out.set(`${r[measureCol]}\u0000${r[nodeCol]}`, p);
-    } else if (featureCol && typeof r[featureCol] === 'string') {
+    } else if (!familyCol && featureCol && typeof r[featureCol] === 'string') {
       const m = /^(.+?)(?::|\[|\/)(.+?)\]?$/.exec(r[featureCol] as string);
       if (m) out.set(`${m[1]}\u0000${m[2]}`, p);
     }
@@ -100,7 +115,7 @@ export function nodeEffects(
     }
     (g === groupA ? c.a : c.b).push(v);
   }
-  const ps = nodePValues(stats);
+  const ps = nodePValues(stats, [groupA, groupB]);
   return [...cells.values()].map((c) => {
     const mean = (x: number[]) => (x.length ? x.reduce((s, v) => s + v, 0) / x.length : NaN);
     const p = ps.get(`${c.measure}\u0000${c.label}`) ?? ps.get(`${c.measure}\u0000${c.node}`) ?? null;

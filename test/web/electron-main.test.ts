@@ -1,0 +1,89 @@
+/**
+ * The Electron door's IPC checks, with electron itself replaced by a stand-in (no binary here):
+ * who may call, which methods, which argument shapes, and which folders.
+ */
+import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { pathToFileURL } from 'node:url';
+import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
+import { createFakeApi } from './fake-api.ts';
+
+type Handler = (event: unknown, method: unknown, args: unknown) => Promise<unknown>;
+const electron = vi.hoisted(() => ({
+  handlers: new Map<string, (event: unknown, method: unknown, args: unknown) => Promise<unknown>>(),
+  picked: [] as string[],
+}));
+
+vi.mock('electron', () => ({
+  app: { whenReady: () => new Promise(() => undefined), on: () => undefined, quit: () => undefined },
+  BrowserWindow: { fromWebContents: () => null, getAllWindows: () => [] },
+  dialog: {
+    showOpenDialog: async () => {
+      const p = electron.picked.shift();
+      return p ? { canceled: false, filePaths: [p] } : { canceled: true, filePaths: [] };
+    },
+    showErrorBox: () => undefined,
+  },
+  ipcMain: { handle: (channel: string, h: Handler) => electron.handlers.set(channel, h) },
+  session: {},
+  shell: { openExternal: async () => undefined },
+}));
+
+const { CALL_CHANNEL, startElectronApp } = await import('../../electron/main.ts');
+
+let dir: string;
+let sample: string;
+let out: string;
+let other: string;
+const api = createFakeApi();
+const indexHtml = '/opt/loopwise/dist/index.html';
+const ours = { senderFrame: { url: pathToFileURL(indexHtml).href }, sender: {} };
+const call = (method: unknown, args: unknown, event: unknown = ours) =>
+  electron.handlers.get(CALL_CHANNEL)!(event, method, args);
+
+beforeAll(() => {
+  dir = mkdtempSync(join(tmpdir(), 'loopwise-ipc-'));
+  [sample, out, other] = ['sample', 'out', 'other'].map((d) => join(dir, d));
+  for (const d of [sample, out, other]) mkdirSync(d);
+  startElectronApp(api, {
+    indexHtml,
+    preload: '/opt/loopwise/preload.cjs',
+    sampleCohort: sample,
+    defaultOutDir: out,
+    version: '1',
+  });
+});
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+describe('Electron IPC', () => {
+  it('refuses calls from any page but the app’s own', async () => {
+    await expect(
+      call('openCohort', [{ dir: sample }], { senderFrame: { url: 'https://evil.example/' }, sender: {} }),
+    ).rejects.toThrow(/did not come from the Loopwise page/);
+    await expect(call('openCohort', [{ dir: sample }], { senderFrame: null, sender: {} })).rejects.toThrow(
+      /refused/,
+    );
+  });
+
+  it('refuses unknown methods and arguments of the wrong shape', async () => {
+    await expect(call('constructor', [])).rejects.toThrow(/no such method/);
+    await expect(call('openCohort', 'not an array')).rejects.toThrow(/malformed/);
+    await expect(call('openCohort', [{ dir: 42 }])).rejects.toThrow(/cohort.dir/);
+    await expect(call('exportRun', ['run-1', out, 'yes'])).rejects.toThrow(/overwrite/);
+  });
+
+  it('touches only the sample cohort, the default output folder and folders picked in the native dialog', async () => {
+    await expect(call('openCohort', [{ dir: sample }])).resolves.toMatchObject({ n: 16 });
+    await expect(call('exportRun', ['run-1', join(out, 'x'), false])).resolves.toBeTruthy();
+    await expect(call('openCohort', [{ dir: other }])).rejects.toThrow(/not inside a folder you picked/);
+    await expect(call('openCohort', [{ dir: join(sample, '..', 'other') }])).rejects.toThrow(/not inside/);
+    electron.picked.push(other);
+    await expect(call('pickFolder', ['cohort'])).resolves.toBe(other);
+    await expect(call('openCohort', [{ dir: other }])).resolves.toMatchObject({ n: 16 });
+    await expect(call('pickFolder', ['output'])).resolves.toBeNull();
+    const info = (await call('info', [])) as { mode: string; roots: string[] };
+    expect(info.mode).toBe('electron');
+    expect(info.roots.sort()).toEqual([other, out, sample].sort());
+  });
+});
