@@ -81,6 +81,25 @@ def write_text(path, text):
         f.write(text)
 
 
+def write_big_endian_mat(path, name, a):
+    import struct
+
+    def element(mi_type, payload):
+        pad = (-len(payload)) % 8
+        return struct.pack('>II', mi_type, len(payload)) + payload + bytes(pad)
+
+    flags = element(6, struct.pack('>II', 6, 0))  # miUINT32: class mxDOUBLE_CLASS
+    dims = element(5, struct.pack('>ii', *a.shape))  # miINT32
+    nm = name.encode('ascii')
+    name_el = struct.pack('>HH', len(nm), 1) + nm.ljust(4, b'\0') if len(nm) <= 4 else element(1, nm)
+    real = element(9, a.astype('>f8').tobytes(order='F'))  # miDOUBLE, column-major
+    body = flags + dims + name_el + real
+    header = b'MATLAB 5.0 MAT-file, written by make_io_fixtures.py (big-endian)'.ljust(116, b' ')
+    header += bytes(8) + struct.pack('>H', 0x0100) + b'MI'
+    with open(path, 'wb') as f:
+        f.write(header + struct.pack('>II', 14, len(body)) + body)
+
+
 def readers():
     d = os.path.join(ROOT, 'readers')
     os.makedirs(d, exist_ok=True)
@@ -142,6 +161,14 @@ def readers():
     s_ml = np.stack([corr_matrix(5) for _ in range(4)], axis=2)
     scipy.io.savemat(os.path.join(d, 'stack_matlab_layout.mat'), {'S': s_ml}, format='5', do_compression=False)
     expect('stack_matlab_layout.mat', np.moveaxis(s_ml, 2, 0), shape=[4, 5, 5], stack=True, format='mat', variable='S')
+
+    # A big-endian level-5 file ('MI'): scipy.io.savemat writes native order only, so the bytes are
+    # laid out by hand here and the expected values are what scipy.io.loadmat reads back from them.
+    big = rng.standard_normal((3, 4))
+    write_big_endian_mat(os.path.join(d, 'double_big_endian.mat'), 'B', big)
+    back = scipy.io.loadmat(os.path.join(d, 'double_big_endian.mat'))['B']
+    assert np.array_equal(back, big)
+    expect('double_big_endian.mat', back, shape=[3, 4], format='mat', variable='B')
 
     # ---- delimited text: pandas ----
     e = corr_matrix(6)
