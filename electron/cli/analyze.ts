@@ -6,6 +6,7 @@
  * none, 2 on a usage error or a refused output folder, 130 when cancelled.
  */
 import { availableParallelism } from 'node:os';
+import { resolve } from 'node:path';
 import type { AnalysisSettings, ProgressEvent, RunSummary, StartRunRequest, StatsSettings } from '../api.ts';
 import type { CliIO } from '../cli.ts';
 import { DEFAULT_TRANSFORM, TRANSFORMS_FOR } from '../engine/transform.ts';
@@ -140,7 +141,11 @@ export function parseAnalyzeArgs(args: string[]): (StartRunRequest & { outDir: s
   if (seed !== undefined) stats.seed = seed;
   const participants = p.values.get('participants');
   return {
-    cohort: { dir: p.positionals[0], ...(participants !== undefined ? { participants } : {}) },
+    // Relative to where the command is run, as a user expects (the readers resolve against the cohort folder).
+    cohort: {
+      dir: p.positionals[0],
+      ...(participants !== undefined ? { participants: resolve(participants) } : {}),
+    },
     settings,
     stats,
     outDir: out,

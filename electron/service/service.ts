@@ -28,8 +28,9 @@ import type {
 import { WorkerPool, defaultPoolSize } from '../workers/pool.ts';
 import { writeFileAtomic } from './atomic.ts';
 import { FiltrationCache } from './cache.ts';
+import { loadSubjectMatrix } from '../io/cohort.ts';
 import { openCohortSource } from './cohort-source.ts';
-import type { CohortSource } from './cohort-source.ts';
+import type { CohortSource, SourceOptions } from './cohort-source.ts';
 import type { RunHooks, StageContext, StageOutput } from './hooks.ts';
 import { runFiltrationStage } from './pipeline.ts';
 import type { ServiceCounters } from './pipeline.ts';
@@ -63,7 +64,7 @@ export interface ServiceOptions {
   /** The worker entry (a compiled build points this at its bundled worker). */
   workerEntry?: URL;
   /** How cohorts are opened; default the cohort readers. Tests inject in-memory cohorts. */
-  openSource?: (req: OpenCohortRequest) => Promise<CohortSource>;
+  openSource?: (req: OpenCohortRequest, opts: SourceOptions) => Promise<CohortSource>;
   hooks?: RunHooks;
   /** Clock for provenance.createdAt (tests). */
   now?: () => Date;
@@ -136,8 +137,8 @@ export class LoopwiseService implements LoopwiseApi {
     this.pool = null;
   }
 
-  private openSource(req: OpenCohortRequest): Promise<CohortSource> {
-    return (this.options.openSource ?? openCohortSource)(req);
+  private openSource(req: OpenCohortRequest, opts: SourceOptions = {}): Promise<CohortSource> {
+    return (this.options.openSource ?? openCohortSource)(req, opts);
   }
 
   private emit(e: ProgressEvent): void {
@@ -185,7 +186,10 @@ export class LoopwiseService implements LoopwiseApi {
       if (req.shard) await mkdir(outDir, { recursive: true });
       else await prepareOutDir(outDir, req.force ?? false, Object.values(tableNames(format)));
     }
-    const source = await this.openSource(req.cohort);
+    const source = await this.openSource(req.cohort, {
+      input: req.settings.input,
+      dropRegions: req.settings.dropRegions,
+    });
     const cacheDir = resolve(
       req.cacheDir ?? (outDir ? join(outDir, CACHE_DIR_NAME) : (this.options.cacheDir ?? CACHE_DIR_NAME)),
     );
@@ -521,8 +525,10 @@ export class LoopwiseService implements LoopwiseApi {
       done: Promise.resolve(null as unknown as RunSummary),
     };
     this.runs.set(runId, state);
-    // The matrices are read again only if a later stage asks for them, and only when reachable.
-    state.source = await this.openSource({ dir: first.report.root }).catch(() => null);
+    // From the recorded report, without checking the cohort again; matrices are read only if a stage asks.
+    state.source = this.options.openSource
+      ? await this.openSource({ dir: first.report.root }).catch(() => null)
+      : { report: first.report, load: (entry) => loadSubjectMatrix(entry) };
     const files = await this.finish(state, dir, format);
     const failures = records
       .filter((r) => r.status === 'failed')

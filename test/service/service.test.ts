@@ -20,7 +20,7 @@ let ids: string[];
 beforeAll(() => {
   root = mkdtempSync(join(tmpdir(), 'loopwise-service-'));
   cohort = join(root, 'cohort');
-  // Subject 3 (sub-004) has a corrupt cell: it must fail with a reason, and the run go on.
+  // Subject 3 (sub-004) has a corrupt cell: the cohort check excludes it with the reason, and the run goes on.
   ids = writeCohort(cohort, { subjects: 10, n: 36, seed: 11, broken: [3] });
 });
 afterAll(async () => {
@@ -57,15 +57,16 @@ async function run(outDir: string | null, extra: Partial<StartRunRequest> = {}) 
 }
 
 describe('cohort runs', () => {
-  it('writes the same tables with 1, 2 and 4 workers, and records the broken subject', async () => {
+  it('writes the same tables with 1, 2 and 4 workers, and records the excluded subject', async () => {
     const outs: Array<Record<string, string>> = [];
     for (const workers of [1, 2, 4]) {
       const dir = join(root, `w${workers}`);
       const { summary, events } = await run(dir, { workers });
       expect(summary.status).toBe('done');
       expect(summary.computed).toBe(9);
-      expect(summary.failures.map((f) => f.subject)).toEqual(['sub-004']);
-      expect(summary.failures[0].reason).toMatch(/sub-004_conn\.csv: .*'oops'/);
+      expect(summary.failures).toEqual([]);
+      expect(summary.excluded?.map((f) => f.subject)).toEqual(['sub-004']);
+      expect(summary.excluded?.[0].reason).toMatch(/oops/);
       expect(events.at(-1)?.phase).toBe('done');
       expect(events.filter((e) => e.phase === 'filtrations').at(-1)?.done).toBe(10);
       outs.push(outputs(dir));
@@ -77,7 +78,8 @@ describe('cohort runs', () => {
     // The tables say what happened to every subject, in cohort order.
     const subjects = outs[0]['subjects.tsv'].trim().split('\n').slice(1);
     expect(subjects.map((l) => l.split('\t')[0])).toEqual(ids);
-    expect(subjects[3].split('\t')[1]).toBe('failed');
+    expect(subjects[3].split('\t').slice(1, 2)).toEqual(['excluded']);
+    expect(subjects[3].split('\t')[2]).toMatch(/oops/);
     const intervals = outs[0]['intervals.tsv'].trim().split('\n');
     expect(intervals[0]).toBe('participant_id\tdimension\tbirth\tdeath\tnodes');
     // One essential H0 class per analysed subject, with death inf; every H1 row names its cycle's nodes.
@@ -99,7 +101,7 @@ describe('cohort runs', () => {
     for (const index of [2, 1, 3]) {
       const { summary } = await run(sharded, { workers: 1, shard: { index, count: 3 } });
       expect(summary.status).toBe('done');
-      computed.push(summary.computed + summary.failures.length);
+      computed.push(summary.computed + (summary.excluded?.length ?? 0));
       // A shard writes no tables, only its part of the cache and its record.
       expect(Object.keys(outputs(sharded))).toEqual([]);
     }
@@ -157,7 +159,10 @@ describe('cohort runs', () => {
   });
 });
 
-/** An in-memory cohort: no files at all; subject 2 is excluded by the cohort check. */
+/**
+ * An in-memory cohort: no files at all. m2 is excluded by the cohort check; m3 cannot be read;
+ * m4 holds a correlation of 1.5, which the transform refuses (an engine error in the worker).
+ */
 function memorySource(subjects: number, n: number): CohortSource {
   return {
     report: {
@@ -182,23 +187,34 @@ function memorySource(subjects: number, n: number): CohortSource {
       ],
       deadRegions: [],
     },
-    load: async (entry) => ({ n, values: correlationMatrix(n, 2 * n, Number(entry.id.slice(1)) + 1) }),
+    load: async (entry) => {
+      if (entry.id === 'm3') throw new Error('m3.csv: permission denied');
+      const values = correlationMatrix(n, 2 * n, Number(entry.id.slice(1)) + 1);
+      if (entry.id === 'm4') values[1] = values[n] = 1.5;
+      return { n, values };
+    },
   };
 }
 
 describe('in-memory cohorts', () => {
-  it('lists excluded subjects with the reason and answers result queries', async () => {
+  it('records excluded and failed subjects with the reason, goes on, and answers result queries', async () => {
     const cacheDir = join(root, 'mem-cache');
-    const service = createLoopwiseService({ openSource: async () => memorySource(5, 30), cacheDir });
+    const service = createLoopwiseService({ openSource: async () => memorySource(7, 30), cacheDir });
     const { runId } = await service.startRun(request(null, { workers: 2 }));
     const summary = await service.waitForRun(runId);
     expect(summary.excluded).toEqual([{ subject: 'm2', reason: 'm2.csv: row 5 is all NaN' }]);
+    expect(summary.failures).toEqual([
+      { subject: 'm3', reason: 'm3.csv: permission denied' },
+      { subject: 'm4', reason: expect.stringMatching(/correlation 1\.5 at row 2, column 1 lies outside/) },
+    ]);
     expect(summary.analysed).toBe(4);
     const results = await service.cohortResults(runId);
     expect(results?.features.rows.map((r) => r[1])).toEqual([
       'analysed',
       'analysed',
       'excluded',
+      'failed',
+      'failed',
       'analysed',
       'analysed',
     ]);
@@ -222,7 +238,7 @@ describe('in-memory cohorts', () => {
     let runId = '';
     let cancelled = false;
     service.onProgress((e) => {
-      if (!cancelled && e.phase === 'filtrations' && e.done >= 4) {
+      if (!cancelled && e.phase === 'filtrations' && e.done - e.failures.length >= 4) {
         cancelled = true;
         void service.cancelRun(runId);
       }
@@ -230,9 +246,9 @@ describe('in-memory cohorts', () => {
     ({ runId } = await service.startRun(request(join(root, 'cancelled'), { workers: 2 })));
     const summary = await service.waitForRun(runId);
     expect(summary.status).toBe('cancelled');
-    // Cancelled once 4 subjects were done, one of them the excluded m2.
+    // Cancelled once 4 subjects were done apart from failures, one of them the excluded m2.
     expect(summary.computed).toBeGreaterThanOrEqual(3);
-    expect(summary.computed).toBeLessThan(39);
+    expect(summary.computed).toBeLessThan(37);
     // No tables were written for a cancelled run.
     expect(existsSync(join(root, 'cancelled', 'intervals.tsv'))).toBe(false);
     expect(listFiles(join(root, 'cancelled')).some((f) => f.includes('loopwise-tmp'))).toBe(false);
@@ -242,7 +258,8 @@ describe('in-memory cohorts', () => {
     const s2 = await again.waitForRun(r.runId);
     expect(s2.status).toBe('done');
     expect(s2.reused).toBe(summary.computed);
-    expect(s2.computed + s2.reused).toBe(39);
+    expect(s2.computed + s2.reused).toBe(37);
+    expect(s2.failures.map((f) => f.subject)).toEqual(['m3', 'm4']);
     await service.close();
     await again.close();
   });
