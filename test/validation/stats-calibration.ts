@@ -1,9 +1,10 @@
 /**
  * Calibration and power of Loopwise's group tests (electron/engine/stats), as a report.
  *
- *   npm run validate:stats              # full run: about 2 minutes on one core (see README.md)
- *   npm run validate:stats -- --quick   # fewer cohorts and permutations: a few seconds
+ *   npm run validate:stats              # full run: about 1 minute on one core (see README.md)
+ *   npm run validate:stats -- --quick   # fewer cohorts: about 15 seconds
  *   npm run validate:stats -- --seed 5  # another master seed
+ *   npm run validate:stats -- --cohorts 10000  # more null cohorts per setting (part 1)
  *
  * Exits 1 when a calibration check fails, 2 on a usage error. Not part of `npm test`: it is a
  * statistical experiment, not a unit test.
@@ -77,9 +78,10 @@ function cohortSeed(master: number, section: number, c: number): number {
   return (master ^ Math.imul(section, 0x9e3779b1) ^ Math.imul(c + 1, 0x85ebca6b)) >>> 0;
 }
 
-function parseArgs(argv: string[]): { quick: boolean; seed: number } {
+function parseArgs(argv: string[]): { quick: boolean; seed: number; cohorts: number | null } {
   let quick = false;
   let seed = DEFAULT_SEED;
+  let cohorts: number | null = null;
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i];
     if (a === '--quick') quick = true;
@@ -87,17 +89,21 @@ function parseArgs(argv: string[]): { quick: boolean; seed: number } {
       const v = Number(argv[++i]);
       if (!Number.isInteger(v) || v < 0 || v > 0xffffffff) usage(`--seed needs an integer in 0 … 2^32 − 1`);
       seed = v;
+    } else if (a === '--cohorts') {
+      const v = Number(argv[++i]);
+      if (!Number.isInteger(v) || v < 10) usage('--cohorts needs an integer ≥ 10');
+      cohorts = v;
     } else if (a === '--help' || a === '-h') {
-      console.log('usage: tsx test/validation/stats-calibration.ts [--quick] [--seed N]');
+      console.log('usage: tsx test/validation/stats-calibration.ts [--quick] [--seed N] [--cohorts N]');
       process.exit(0);
     } else usage(`unknown argument '${a}'`);
   }
-  return { quick, seed };
+  return { quick, seed, cohorts };
 }
 
 function usage(message: string): never {
   console.error(
-    `stats-calibration: ${message}\nusage: tsx test/validation/stats-calibration.ts [--quick] [--seed N]`,
+    `stats-calibration: ${message}\nusage: tsx test/validation/stats-calibration.ts [--quick] [--seed N] [--cohorts N]`,
   );
   process.exit(2);
 }
@@ -167,8 +173,8 @@ function resolutionNote(b: number): string {
 }
 
 function main(): void {
-  const { quick, seed } = parseArgs(process.argv.slice(2));
-  const size = quick ? QUICK : FULL;
+  const { quick, seed, cohorts } = parseArgs(process.argv.slice(2));
+  const size = { ...(quick ? QUICK : FULL), ...(cohorts ? { nullCohorts: cohorts } : {}) };
   const tAll = performance.now();
   console.log(`Loopwise statistics calibration (${quick ? 'quick' : 'full'} run)`);
   console.log(
