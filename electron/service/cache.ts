@@ -34,6 +34,11 @@ filtration setting. A run reuses them instead of recomputing, and an interrupted
 from them. It is safe to delete this folder; the next run recomputes what it needs.
 `;
 
+/** Where the entry of `key` lives under the cache folder `dir`. */
+export function cachePath(dir: string, key: string): string {
+  return join(dir, 'filtrations', key.slice(0, 2), `${key}.json`);
+}
+
 export class FiltrationCache {
   readonly dir: string;
   constructor(dir: string) {
@@ -41,7 +46,7 @@ export class FiltrationCache {
   }
 
   private pathOf(key: string): string {
-    return join(this.dir, 'filtrations', key.slice(0, 2), `${key}.json`);
+    return cachePath(this.dir, key);
   }
 
   /** Creates the folder; removes temporaries of dead writers. */

@@ -13,6 +13,11 @@ export interface CohortSource {
   report: CohortReport;
   /** The subject's matrix as stored (regions are dropped later, by the filtration itself). */
   load(entry: SubjectEntry): Promise<SquareMatrix>;
+  /**
+   * load is the cohort readers' loadSubjectMatrix, which worker threads can call themselves: the
+   * run then reads and hashes subjects on the workers, in parallel (in-memory sources cannot).
+   */
+  loadsInWorker?: boolean;
 }
 
 export interface SourceOptions {
@@ -30,5 +35,5 @@ export async function openCohortSource(
     ...(opts.input !== undefined ? { input: opts.input } : {}),
     ...(opts.dropRegions !== undefined ? { dropRegions: opts.dropRegions } : {}),
   });
-  return { report, load: (entry) => loadSubjectMatrix(entry) };
+  return { report, load: (entry) => loadSubjectMatrix(entry), loadsInWorker: true };
 }

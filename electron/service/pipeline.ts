@@ -9,7 +9,7 @@ import { relative, sep } from 'node:path';
 import type { AnalysisSettings, CohortReport, SubjectEntry } from '../api.ts';
 import { FiltrationError } from '../workers/pool.ts';
 import type { WorkerPool } from '../workers/pool.ts';
-import type { PackedFiltration } from '../workers/filtration.ts';
+import type { PackedFiltration, WorkerReply } from '../workers/filtration.ts';
 import { CACHE_FORMAT } from './cache.ts';
 import type { CachedFiltration, FiltrationCache } from './cache.ts';
 import type { CohortSource } from './cohort-source.ts';
@@ -138,58 +138,97 @@ export async function runFiltrationStage(opts: FiltrationStageOptions): Promise<
     }
     opts.onStart?.(entry);
     base.fileSha256 = await hashFile(entry.source.file);
+    const fail = (e: unknown, matrixSha256: string | null = null): void => {
+      const reason = e instanceof FiltrationError ? e.message : e instanceof Error ? e.message : String(e);
+      finish({ ...base, matrixSha256, reason }, false, false);
+    };
+    const commit = async (packed: PackedFiltration, key: string, matrixSha256: string): Promise<void> => {
+      counters.filtrations++;
+      await cache.put(unpack(packed, key, matrixSha256));
+      finish({ ...base, status: 'analysed', key, matrixSha256 }, false, true);
+    };
+    const filtration = {
+      input: settings.input,
+      transform: settings.transform,
+      maxDim: settings.maxDim,
+      cap: settings.cap,
+      representatives: settings.representatives,
+      dropRegions: settings.dropRegions,
+    };
+
+    if (source.loadsInWorker) {
+      // The worker reads, hashes and looks the subject up in the cache; this thread only commits.
+      for (const recompute of [false, true]) {
+        let reply: WorkerReply;
+        try {
+          reply = await pool.run({
+            kind: 'subject',
+            taskId: index,
+            entry,
+            expectedN: report.n,
+            settings: filtration,
+            cacheDir: cache.dir,
+            recompute,
+          });
+          counters.loads++;
+        } catch (e) {
+          if (!opts.cancelled()) fail(e);
+          return;
+        }
+        if (reply.kind === 'computed') {
+          await commit(reply.result, reply.key as string, reply.matrixSha256 as string);
+          return;
+        }
+        // An entry the worker saw but this thread cannot use (another cache format): recompute it.
+        if (await cache.get(reply.key)) {
+          counters.reused++;
+          finish(
+            { ...base, status: 'analysed', key: reply.key, matrixSha256: reply.matrixSha256 },
+            true,
+            false,
+          );
+          return;
+        }
+        if (opts.cancelled()) return;
+      }
+      return;
+    }
+
     let matrix;
     try {
       matrix = await source.load(entry);
       counters.loads++;
     } catch (e) {
-      finish({ ...base, reason: e instanceof Error ? e.message : String(e) }, false, false);
+      fail(e);
       return;
     }
     if (report.n !== null && matrix.n !== report.n) {
-      finish(
-        {
-          ...base,
-          reason: `matrix is ${matrix.n} × ${matrix.n} but the cohort's matrices are ${report.n} × ${report.n}`,
-        },
-        false,
-        false,
-      );
+      fail(`matrix is ${matrix.n} × ${matrix.n} but the cohort's matrices are ${report.n} × ${report.n}`);
       return;
     }
     const matrixSha256 = sha256Matrix(matrix);
     const key = filtrationKey(matrixSha256, settings);
-    const analysed: SubjectRecord = { ...base, status: 'analysed', key, matrixSha256 };
     if (await cache.get(key)) {
       counters.reused++;
-      finish(analysed, true, false);
+      finish({ ...base, status: 'analysed', key, matrixSha256 }, true, false);
       return;
     }
     if (opts.cancelled()) return;
-    let packed: PackedFiltration;
+    let reply: WorkerReply;
     try {
-      packed = await pool.run({
+      reply = await pool.run({
+        kind: 'matrix',
         taskId: index,
         n: matrix.n,
         values: matrix.values,
-        settings: {
-          input: settings.input,
-          transform: settings.transform,
-          maxDim: settings.maxDim,
-          cap: settings.cap,
-          representatives: settings.representatives,
-          dropRegions: settings.dropRegions,
-        },
+        settings: filtration,
       });
     } catch (e) {
-      if (opts.cancelled()) return;
-      const reason = e instanceof FiltrationError ? e.message : e instanceof Error ? e.message : String(e);
-      finish({ ...base, matrixSha256, reason }, false, false);
+      if (!opts.cancelled()) fail(e, matrixSha256);
       return;
     }
-    counters.filtrations++;
-    await cache.put(unpack(packed, key, matrixSha256));
-    finish(analysed, false, true);
+    if (reply.kind !== 'computed') throw new Error('a matrix task came back without a filtration');
+    await commit(reply.result, key, matrixSha256);
   };
 
   const window = Math.max(1, opts.window ?? 2 * pool.size);

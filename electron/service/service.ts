@@ -528,7 +528,7 @@ export class LoopwiseService implements LoopwiseApi {
     // From the recorded report, without checking the cohort again; matrices are read only if a stage asks.
     state.source = this.options.openSource
       ? await this.openSource({ dir: first.report.root }).catch(() => null)
-      : { report: first.report, load: (entry) => loadSubjectMatrix(entry) };
+      : { report: first.report, load: (entry) => loadSubjectMatrix(entry), loadsInWorker: true };
     const files = await this.finish(state, dir, format);
     const failures = records
       .filter((r) => r.status === 'failed')

@@ -38,7 +38,12 @@ export function checkSettings(s: AnalysisSettings): void {
 }
 
 /** The settings a filtration depends on, in a fixed key order. Everything else (features, statistics) can change freely and reuse the cache. */
-export function filtrationSettings(s: AnalysisSettings): Record<string, unknown> {
+export type FiltrationFields = Pick<
+  AnalysisSettings,
+  'input' | 'transform' | 'maxDim' | 'cap' | 'representatives' | 'dropRegions'
+>;
+
+export function filtrationSettings(s: FiltrationFields): Record<string, unknown> {
   return {
     engineVersion: ENGINE_VERSION,
     input: s.input,
@@ -51,14 +56,14 @@ export function filtrationSettings(s: AnalysisSettings): Record<string, unknown>
 }
 
 /** SHA-256 (hex) of the filtration settings alone: shards and merges check they agree on it. */
-export function filtrationSettingsHash(s: AnalysisSettings): string {
+export function filtrationSettingsHash(s: FiltrationFields): string {
   return createHash('sha256')
     .update(JSON.stringify(filtrationSettings(s)))
     .digest('hex');
 }
 
 /** The cache key of one subject: its matrix bytes' hash with the filtration settings and ENGINE_VERSION. */
-export function filtrationKey(matrixSha256: string, s: AnalysisSettings): string {
+export function filtrationKey(matrixSha256: string, s: FiltrationFields): string {
   return createHash('sha256')
     .update(JSON.stringify({ matrix: matrixSha256, ...filtrationSettings(s) }))
     .digest('hex');

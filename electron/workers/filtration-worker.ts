@@ -1,20 +1,52 @@
-/** Worker-thread entry: runs one FiltrationTask per message and posts the packed result (or the error) back. */
+/**
+ * Worker-thread entry: one task per message, the reply (or the error) posted back with its
+ * buffers transferred. A 'matrix' task brings its matrix; a 'subject' task names a subject the
+ * worker reads, hashes and looks up in the cache itself (see SubjectTask).
+ */
+import { access } from 'node:fs/promises';
 import { parentPort } from 'node:worker_threads';
+import { loadSubjectMatrix } from '../io/cohort.ts';
+import { cachePath } from '../service/cache.ts';
+import { sha256Matrix } from '../service/hash.ts';
+import { filtrationKey } from '../service/settings.ts';
 import { runFiltration, transferList } from './filtration.ts';
-import type { FiltrationFailure, FiltrationTask } from './filtration.ts';
+import type { FiltrationFailure, WorkerReply, WorkerTask } from './filtration.ts';
 
 const port = parentPort;
 if (!port) throw new Error('filtration-worker.ts must run in a worker thread');
 
-port.on('message', (task: FiltrationTask) => {
-  try {
-    const result = runFiltration(task);
-    port.postMessage({ ok: true, result }, transferList(result));
-  } catch (e) {
-    const failure: FiltrationFailure = {
-      taskId: task.taskId,
-      error: e instanceof Error ? e.message : String(e),
-    };
-    port.postMessage({ ok: false, failure });
+async function handle(task: WorkerTask): Promise<WorkerReply> {
+  if (task.kind === 'matrix')
+    return { kind: 'computed', result: runFiltration(task), matrixSha256: null, key: null };
+  const m = await loadSubjectMatrix(task.entry);
+  if (task.expectedN !== null && m.n !== task.expectedN)
+    throw new Error(
+      `matrix is ${m.n} × ${m.n} but the cohort's matrices are ${task.expectedN} × ${task.expectedN}`,
+    );
+  const matrixSha256 = sha256Matrix(m);
+  const key = filtrationKey(matrixSha256, task.settings);
+  if (!task.recompute) {
+    const present = await access(cachePath(task.cacheDir, key)).then(
+      () => true,
+      () => false,
+    );
+    if (present) return { kind: 'cached', taskId: task.taskId, matrixSha256, key, n: m.n };
   }
+  const result = runFiltration({ taskId: task.taskId, n: m.n, values: m.values, settings: task.settings });
+  return { kind: 'computed', result, matrixSha256, key };
+}
+
+// The pool sends a worker one task at a time, so handling a message asynchronously is safe.
+port.on('message', (task: WorkerTask) => {
+  handle(task).then(
+    (reply) =>
+      port.postMessage({ ok: true, reply }, reply.kind === 'computed' ? transferList(reply.result) : []),
+    (e: unknown) => {
+      const failure: FiltrationFailure = {
+        taskId: task.taskId,
+        error: e instanceof Error ? e.message : String(e),
+      };
+      port.postMessage({ ok: false, failure });
+    },
+  );
 });

@@ -8,6 +8,7 @@ import { computePersistence } from '../engine/persistence.ts';
 import { toDistances } from '../engine/transform.ts';
 import type { InputKind, TransformName } from '../engine/transform.ts';
 import type { CapSetting, SquareMatrix } from '../engine/types.ts';
+import type { SubjectEntry } from '../api.ts';
 
 export interface FiltrationSettings {
   input: InputKind;
@@ -24,6 +25,27 @@ export interface FiltrationTask {
   values: Float64Array;
   settings: FiltrationSettings;
 }
+
+/**
+ * A subject the worker reads itself (through the cohort readers), so that parsing files and hashing
+ * run in parallel too, not on the coordinating thread. The worker hashes the matrix, and when
+ * `cacheDir` holds the filtration already (and not `recompute`) it only says so.
+ */
+export interface SubjectTask {
+  taskId: number;
+  entry: SubjectEntry;
+  /** The cohort's N: a matrix of another size is refused. */
+  expectedN: number | null;
+  settings: FiltrationSettings;
+  cacheDir: string;
+  recompute: boolean;
+}
+
+export type WorkerTask = ({ kind: 'matrix' } & FiltrationTask) | ({ kind: 'subject' } & SubjectTask);
+
+export type WorkerReply =
+  | { kind: 'computed'; result: PackedFiltration; matrixSha256: string | null; key: string | null }
+  | { kind: 'cached'; taskId: number; matrixSha256: string; key: string; n: number };
 
 /** Diagrams and representatives as flat typed arrays (transferable). Node indices are those of the matrix as given. */
 export interface PackedFiltration {

@@ -12,7 +12,7 @@
  */
 import { availableParallelism } from 'node:os';
 import { Worker } from 'node:worker_threads';
-import type { FiltrationFailure, FiltrationTask, PackedFiltration } from './filtration.ts';
+import type { FiltrationFailure, WorkerReply, WorkerTask } from './filtration.ts';
 
 /** The TypeScript worker behind a tiny .js bootstrap that registers tsx (see bootstrap.js for why). */
 export const DEFAULT_WORKER_ENTRY = new URL('./bootstrap.js', import.meta.url);
@@ -26,7 +26,7 @@ export class FiltrationError extends Error {
 
 interface Slot {
   worker: Worker;
-  busy: { task: number; resolve: (r: PackedFiltration) => void; reject: (e: Error) => void } | null;
+  busy: { task: number; resolve: (r: WorkerReply) => void; reject: (e: Error) => void } | null;
 }
 
 export function defaultPoolSize(): number {
@@ -53,12 +53,12 @@ export class WorkerPool {
     const slot: Slot = { worker: new Worker(this.entry), busy: null };
     slot.worker.on(
       'message',
-      (m: { ok: true; result: PackedFiltration } | { ok: false; failure: FiltrationFailure }) => {
+      (m: { ok: true; reply: WorkerReply } | { ok: false; failure: FiltrationFailure }) => {
         const busy = slot.busy;
         if (!busy) return;
         slot.busy = null;
         this.completed++;
-        if (m.ok) busy.resolve(m.result);
+        if (m.ok) busy.resolve(m.reply);
         else busy.reject(new FiltrationError(m.failure.error));
         this.release();
       },
@@ -82,19 +82,25 @@ export class WorkerPool {
     if (next) next();
   }
 
-  /** Runs one task; task.values is transferred (detached on return). */
-  async run(task: FiltrationTask): Promise<PackedFiltration> {
+  /** Runs one task; a matrix task's values are transferred (detached on return). */
+  async run(task: WorkerTask): Promise<WorkerReply> {
     for (;;) {
       if (this.closed) throw new FiltrationError('worker pool is closed');
       const slot = this.slots.find((s) => s.busy === null);
       if (slot) {
-        let values = task.values;
-        // Only a buffer the array owns whole can be transferred without detaching someone else's data.
-        if (values.byteOffset !== 0 || values.byteLength !== values.buffer.byteLength)
-          values = values.slice();
-        return new Promise<PackedFiltration>((resolve, reject) => {
+        let transfer: ArrayBuffer[] = [];
+        let message: WorkerTask = task;
+        if (task.kind === 'matrix') {
+          let values = task.values;
+          // Only a buffer the array owns whole can be transferred without detaching someone else's data.
+          if (values.byteOffset !== 0 || values.byteLength !== values.buffer.byteLength)
+            values = values.slice();
+          message = { ...task, values };
+          transfer = [values.buffer as ArrayBuffer];
+        }
+        return new Promise<WorkerReply>((resolve, reject) => {
           slot.busy = { task: task.taskId, resolve, reject };
-          slot.worker.postMessage({ ...task, values }, [values.buffer as ArrayBuffer]);
+          slot.worker.postMessage(message, transfer);
         });
       }
       await new Promise<void>((resolve) => this.waiting.push(resolve));
