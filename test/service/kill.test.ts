@@ -104,8 +104,8 @@ it('survives SIGKILL at random points and resumes to the uninterrupted result', 
       expect(r.code, r.stderr).toBe(0);
       break;
     }
-    const m = /(\d+) reused from the cache/.exec(r.stderr);
-    if (m) reusedSeen = Math.max(reusedSeen, Number(m[1]));
+    // Progress lines say '(reused N' as soon as a restart takes subjects from the cache.
+    for (const m of r.stderr.matchAll(/\(reused (\d+)/g)) reusedSeen = Math.max(reusedSeen, Number(m[1]));
   }
   expect(killed).toBeGreaterThanOrEqual(3);
 
