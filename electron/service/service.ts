@@ -32,6 +32,7 @@ import { loadSubjectMatrix } from '../io/cohort.ts';
 import { openCohortSource } from './cohort-source.ts';
 import type { CohortSource, SourceOptions } from './cohort-source.ts';
 import type { RunHooks, StageContext, StageOutput } from './hooks.ts';
+import { cohortStages } from './stages.ts';
 import { runFiltrationStage } from './pipeline.ts';
 import type { ServiceCounters } from './pipeline.ts';
 import {
@@ -65,7 +66,11 @@ export interface ServiceOptions {
   workerEntry?: URL;
   /** How cohorts are opened; default the cohort readers. Tests inject in-memory cohorts. */
   openSource?: (req: OpenCohortRequest, opts: SourceOptions) => Promise<CohortSource>;
-  hooks?: RunHooks;
+  /**
+   * Stages (2)–(4) of a run: a factory called afresh for each run (a stage may carry state to the
+   * next), or one fixed object. Default: the group filtrations, features and statistics of stages.ts.
+   */
+  hooks?: RunHooks | (() => RunHooks);
   /** Clock for provenance.createdAt (tests). */
   now?: () => Date;
 }
@@ -385,7 +390,8 @@ export class LoopwiseService implements LoopwiseApi {
     } else {
       state.provenance = buildProvenance(run, createdAt);
     }
-    const hooks = this.options.hooks ?? {};
+    const given = this.options.hooks ?? cohortStages;
+    const hooks = typeof given === 'function' ? given() : given;
     const ctx = this.stageContext(state, outDir, format, files);
     for (const stage of ['groupFiltrations', 'features', 'statistics'] as const) {
       const hook = hooks[stage];

@@ -1,0 +1,497 @@
+/**
+ * Stages (2)–(4) of a cohort run (see hooks.ts): group-level filtrations, per-subject features
+ * with their exports, and group statistics. One `cohortStages()` object serves one run: the
+ * features stage leaves its tables for the statistics stage.
+ *
+ * Files written (TSV, or CSV with --csv; n/a for missing):
+ *   features.tsv        participant_id, the participants table's columns, every scalar feature
+ *   nodes.tsv           participant_id, node, label, network, measure, value
+ *   networks.tsv        participant_id, network, measure, mean, nodes   (when the node table names networks)
+ *   curves.tsv          participant_id, curve, dimension, grid_value, value
+ *   group-curves.tsv    group, curve, dimension, grid_value, mean, lower, upper   (bootstrap 95% band)
+ *   group-intervals.tsv group, dimension, birth, death, nodes
+ *   group-nodes.tsv     group, node, label, network, measure, value
+ *   stats.tsv, diagram-tests.tsv, embedding.tsv   (with --group)
+ */
+import type { CohortReport, CurveBand, NodeInfo, SubjectEntry, Table } from '../api.ts';
+import {
+  curveBands,
+  featureTable,
+  filtrationEnd,
+  grid,
+  networkScoreTable,
+  nodeScoreTable,
+  subjectCurves,
+  subjectFeatureRow,
+  subjectNodeScores,
+} from '../engine/features/index.ts';
+import type { FeatureRow } from '../engine/features/index.ts';
+import { computePersistence } from '../engine/persistence.ts';
+import { buildDesign, DesignError } from '../engine/stats/design.ts';
+import type { Design } from '../engine/stats/design.ts';
+import { diagramDistanceMatrix, metricName } from '../engine/stats/diagram-distance.ts';
+import type { DiagramMetric } from '../engine/stats/diagram-distance.ts';
+import { jointLossTest, permanova } from '../engine/stats/diagram-tests.ts';
+import { classicalMds, umapEmbedding } from '../engine/stats/embedding.ts';
+import { testFamily } from '../engine/stats/family.ts';
+import type { FamilyResult, FeatureFamily } from '../engine/stats/family.ts';
+import { diagramTestsTable, statsTable } from '../engine/stats/tables.ts';
+import type { DiagramTestEntry } from '../engine/stats/tables.ts';
+import { toDistances } from '../engine/transform.ts';
+import type { DistanceMatrix, PersistenceResult, SquareMatrix } from '../engine/types.ts';
+import { dropRegions } from '../workers/filtration.ts';
+import type { CachedFiltration } from './cache.ts';
+import type { RunHooks, StageContext, StageOutput } from './hooks.ts';
+
+/** The engine's result type from a cached filtration, node indices in the matrix as read. */
+export function resultFromCache(c: CachedFiltration, nRead: number): PersistenceResult {
+  const diagrams = c.diagrams.map((dg) => dg.map(([b, d]) => ({ birth: b, death: d ?? Infinity })));
+  return {
+    n: nRead,
+    threshold: c.threshold ?? Infinity,
+    thresholdSource: c.thresholdSource as PersistenceResult['thresholdSource'],
+    diagrams,
+    representatives: c.representatives
+      ? c.representatives.map((r, k) => ({
+          birth: diagrams[1][k].birth,
+          death: diagrams[1][k].death,
+          edges: r.edges,
+          nodes: r.nodes,
+        }))
+      : undefined,
+    mergeTree: (c.mergeTree ?? []).map(([value, i, j, survivor, absorbed]) => ({
+      value,
+      edge: [i, j] as [number, number],
+      survivor,
+      absorbed,
+    })),
+    counts: { edges: 0, columnsReduced: [], apparentPairs: [] },
+  };
+}
+
+const GROUP_SEED_OFFSET = 7919; // bootstrap bands use seed + offset, so they do not reuse the permutation stream
+
+export function cohortStages(): RunHooks {
+  // Carried from the features stage to the statistics stage of the same run.
+  let featureRows: Array<{ subject: string; features: FeatureRow }> = [];
+  let nodeScores: Array<{ subject: string; scores: Record<string, number[]> }> = [];
+  let curveRows: Array<{ subject: string; curves: Record<string, Float64Array> }> = [];
+  let gridValues: Float64Array = new Float64Array(0);
+  let diagramsBySubject: Array<Array<Array<[number, number | null]>>> = [];
+
+  const groupOf = (ctx: StageContext, id: string): string | null => {
+    const col = ctx.stats.groupColumn;
+    if (!col) return null;
+    const entry = ctx.report.subjects.find((s) => s.id === id);
+    const v = entry?.covariates[col];
+    return v === null || v === undefined ? null : String(v);
+  };
+
+  return {
+    async groupFiltrations(ctx) {
+      const col = ctx.stats.groupColumn;
+      if (!col) return {};
+      const settings = ctx.run.settings;
+      const groups = new Map<string, SubjectEntry[]>();
+      for (const rec of ctx.analysed) {
+        const g = groupOf(ctx, rec.id);
+        const entry = ctx.report.subjects.find((s) => s.id === rec.id);
+        if (g === null || !entry) continue;
+        if (!groups.has(g)) groups.set(g, []);
+        groups.get(g)!.push(entry);
+      }
+      const intervals: Table = { columns: ['group', 'dimension', 'birth', 'death', 'nodes'], rows: [] };
+      const nodeRows: Array<{ subject: string; scores: Record<string, number[]> }> = [];
+      const groupDiagrams: StageOutput['groupDiagrams'] = [];
+      let done = 0;
+      for (const [g, entries] of [...groups].sort((a, b) => a[0].localeCompare(b[0]))) {
+        if (ctx.cancelled()) break;
+        ctx.progress('group-filtrations', done, groups.size, `group ${g}`);
+        const mean = await streamingGroupMean(ctx, entries, settings.input === 'correlation');
+        if (!mean) continue;
+        const { matrix, kept } = dropRegions(mean, settings.dropRegions);
+        const distances = toDistances(matrix, { input: settings.input, transform: settings.transform });
+        const r = computePersistence(distances, {
+          maxDim: settings.maxDim,
+          cap: settings.cap,
+          representatives: settings.representatives,
+        });
+        const mapped = mapToRead(r, kept, mean.n);
+        groupDiagrams.push({
+          group: g,
+          diagrams: mapped.diagrams.map((dg) =>
+            dg.map(
+              (iv) => [iv.birth, Number.isFinite(iv.death) ? iv.death : null] as [number, number | null],
+            ),
+          ),
+        });
+        mapped.diagrams.forEach((dg, d) =>
+          dg.forEach((iv, k) =>
+            intervals.rows.push([
+              g,
+              d,
+              iv.birth,
+              Number.isFinite(iv.death) ? iv.death : 'inf',
+              d === 1 && mapped.representatives ? mapped.representatives[k].nodes.join(' ') : null,
+            ]),
+          ),
+        );
+        nodeRows.push({ subject: g, scores: maskDropped(subjectNodeScores(mapped, settings), kept, mean.n) });
+        done++;
+      }
+      await ctx.writeTable('group-intervals', intervals);
+      const gn = nodeScoreTable(nodeRows, ctx.report.nodes);
+      gn.columns[0] = 'group';
+      await ctx.writeTable('group-nodes', gn);
+      return { groupDiagrams };
+    },
+
+    async features(ctx) {
+      const settings = ctx.run.settings;
+      const nRead = ctx.report.n ?? 0;
+      // Pass 1: the cohort grid (the cohort's filtration range unless the user set one).
+      let lo = Infinity;
+      let hi = -Infinity;
+      for (const rec of ctx.analysed) {
+        const r = resultFromCache(await ctx.filtration(rec), nRead);
+        if (r.mergeTree.length > 0) lo = Math.min(lo, r.mergeTree[0].value);
+        hi = Math.max(hi, filtrationEnd(r));
+      }
+      if (!Number.isFinite(lo)) lo = 0;
+      if (!Number.isFinite(hi)) hi = lo;
+      gridValues = settings.gridRange
+        ? grid(settings.gridRange[0], settings.gridRange[1], settings.gridPoints)
+        : grid(lo, hi, settings.gridPoints);
+
+      // Pass 2: one subject at a time.
+      featureRows = [];
+      nodeScores = [];
+      curveRows = [];
+      diagramsBySubject = [];
+      const curvesTable: Table = {
+        columns: ['participant_id', 'curve', 'dimension', 'grid_value', 'value'],
+        rows: [],
+      };
+      let done = 0;
+      for (const rec of ctx.analysed) {
+        if (ctx.cancelled()) return {};
+        ctx.progress('features', done, ctx.analysed.length, rec.id);
+        const cached = await ctx.filtration(rec);
+        const r = resultFromCache(cached, nRead);
+        diagramsBySubject.push(cached.diagrams);
+        const entry = ctx.report.subjects.find((s) => s.id === rec.id);
+        const distances = entry ? await subjectDistances(ctx, entry) : null;
+        featureRows.push({
+          subject: rec.id,
+          features: subjectFeatureRow(r, gridValues, settings, distances ?? undefined),
+        });
+        const kept = keptRegions(nRead, settings.dropRegions);
+        nodeScores.push({
+          subject: rec.id,
+          scores: maskDropped(subjectNodeScores(r, settings), kept, nRead),
+        });
+        const curves = subjectCurves(r, gridValues, settings, distances ?? undefined);
+        curveRows.push({ subject: rec.id, curves });
+        for (const [name, values] of Object.entries(curves)) {
+          const dim = curveDimension(name);
+          values.forEach((v, i) => curvesTable.rows.push([rec.id, name, dim, gridValues[i], v]));
+        }
+        done++;
+      }
+      ctx.progress('features', done, ctx.analysed.length);
+
+      const features = withParticipants(featureTable(featureRows), ctx.report);
+      await ctx.writeTable('features', features);
+      const nodes = nodeScoreTable(nodeScores, ctx.report.nodes);
+      nodes.columns[0] = 'participant_id';
+      await ctx.writeTable('nodes', nodes);
+      const networks = networkScoreTable(nodeScores, ctx.report.nodes);
+      if (networks.rows.length > 0) {
+        networks.columns[0] = 'participant_id';
+        await ctx.writeTable('networks', networks);
+      }
+      await ctx.writeTable('curves', curvesTable);
+
+      // Group means of every curve with a seeded bootstrap band.
+      const groupCurves: CurveBand[] = [];
+      const bandTable: Table = {
+        columns: ['group', 'curve', 'dimension', 'grid_value', 'mean', 'lower', 'upper'],
+        rows: [],
+      };
+      const curveNames = curveRows.length > 0 ? Object.keys(curveRows[0].curves) : [];
+      for (const name of curveNames) {
+        const input = curveRows.map(({ subject, curves }) => ({
+          group: groupOf(ctx, subject) ?? 'all',
+          values: curves[name],
+        }));
+        for (const band of curveBands(input, name, gridValues, {
+          seed: ctx.stats.seed + GROUP_SEED_OFFSET,
+        })) {
+          groupCurves.push(band);
+          band.grid.forEach((x, i) =>
+            bandTable.rows.push([
+              band.group,
+              band.curve,
+              curveDimension(band.curve),
+              x,
+              band.mean[i],
+              band.lower[i],
+              band.upper[i],
+            ]),
+          );
+        }
+      }
+      await ctx.writeTable('group-curves', bandTable);
+      return { features, nodeScores: nodes, groupCurves };
+    },
+
+    async statistics(ctx) {
+      const col = ctx.stats.groupColumn;
+      if (!col || featureRows.length === 0) return {};
+      let design: Design;
+      try {
+        design = buildDesign(
+          ctx.report.subjects
+            .filter((s) => featureRows.some((f) => f.subject === s.id))
+            .map((s) => ({ id: s.id, covariates: s.covariates })),
+          { groupColumn: col, covariates: ctx.stats.covariates },
+        );
+      } catch (e) {
+        if (e instanceof DesignError) throw new Error(`statistics: ${e.message}`);
+        throw e;
+      }
+      const subjects = featureRows.map((f) => f.subject);
+      const families = buildFamilies(
+        subjects,
+        featureRows,
+        nodeScores,
+        curveRows,
+        gridValues,
+        ctx.report.nodes,
+      );
+      const results: FamilyResult[] = [];
+      const options = { permutations: ctx.stats.permutations, seed: ctx.stats.seed };
+      let done = 0;
+      for (const family of families) {
+        if (ctx.cancelled()) return {};
+        ctx.progress('statistics', done++, families.length + 1, family.name);
+        if (family.features.length === 0) continue;
+        for (const contrast of design.contrasts) results.push(testFamily(design, contrast, family, options));
+      }
+      const { table: stats, warnings } = statsTable(results);
+      await ctx.writeTable('stats', stats);
+
+      // Whole-diagram tests and the subject map, per dimension.
+      ctx.progress('statistics', families.length, families.length + 1, 'diagram tests');
+      const position = new Map(subjects.map((s, i) => [s, i]));
+      const idx = design.ids.map((id) => position.get(id)!);
+      const groupSizes = design.levels.map((level, g) => ({ level, n: design.groupSizes[g] }));
+      const metric: DiagramMetric =
+        idx.length <= 60 ? { kind: 'wasserstein', p: 2 } : { kind: 'sliced-wasserstein' };
+      const entries: DiagramTestEntry[] = [];
+      let embedding: StageOutput['embedding'] = null;
+      for (let d = 0; d < (diagramsBySubject[0]?.length ?? 0); d++) {
+        const dm = diagramDistanceMatrix(
+          idx.map((i) => diagramsBySubject[i][d]),
+          metric,
+        );
+        for (const test of [jointLossTest(dm, design.group, options), permanova(dm, design.group, options)]) {
+          entries.push({ family: `H${d}`, metric: metricName(metric), result: test, groupSizes });
+        }
+        if (d === 1 || (d === 0 && diagramsBySubject[0].length === 1))
+          embedding = subjectMap(dm, design, ctx.stats.seed);
+      }
+      const diagramTests = diagramTestsTable(entries);
+      await ctx.writeTable('diagram-tests', diagramTests);
+      if (embedding) {
+        await ctx.writeTable('embedding', {
+          columns: ['participant_id', 'group', 'method', 'x', 'y'],
+          rows: embedding.map((e) => [e.subject, e.group, e.method, e.x, e.y]),
+        });
+      }
+      if (warnings.length > 0) await ctx.writeJson('stats-warnings.json', warnings);
+      return { stats, diagramTests, embedding };
+    },
+  };
+}
+
+/** The subject's distances as the filtration saw them (regions dropped, transform applied), or null when unreadable. */
+async function subjectDistances(ctx: StageContext, entry: SubjectEntry): Promise<DistanceMatrix | null> {
+  const m = await ctx.matrix(entry);
+  if (!m) return null;
+  const s = ctx.run.settings;
+  try {
+    return toDistances(dropRegions(m, s.dropRegions).matrix, { input: s.input, transform: s.transform });
+  } catch {
+    return null;
+  }
+}
+
+/** Fisher-z (or plain) mean of a group's matrices, reading one subject at a time. */
+async function streamingGroupMean(
+  ctx: StageContext,
+  entries: SubjectEntry[],
+  fisher: boolean,
+): Promise<SquareMatrix | null> {
+  let sum: Float64Array | null = null;
+  let count: Float64Array | null = null;
+  let n = 0;
+  const CLAMP = 1 - 1e-12;
+  for (const e of entries) {
+    const m = await ctx.matrix(e);
+    if (!m) continue;
+    if (!sum) {
+      n = m.n;
+      sum = new Float64Array(n * n);
+      count = new Float64Array(n * n);
+    }
+    if (m.n !== n) continue;
+    for (let k = 0; k < n * n; k++) {
+      const v = m.values[k];
+      if (!Number.isFinite(v)) continue;
+      sum[k] += fisher ? Math.atanh(Math.max(-CLAMP, Math.min(CLAMP, v))) : v;
+      count![k]++;
+    }
+  }
+  if (!sum || !count) return null;
+  const values = new Float64Array(n * n);
+  for (let k = 0; k < n * n; k++) {
+    const mean = count[k] > 0 ? sum[k] / count[k] : NaN;
+    values[k] = fisher ? Math.tanh(mean) : mean;
+  }
+  for (let i = 0; i < n; i++) values[i * n + i] = fisher ? 1 : 0;
+  return { n, values };
+}
+
+function keptRegions(n: number, drop: number[]): Int32Array {
+  const d = new Set(drop);
+  return Int32Array.from({ length: n }, (_, i) => i).filter((i) => !d.has(i));
+}
+
+/** Sets dropped regions' scores to NaN (written as n/a). */
+function maskDropped(
+  scores: Record<string, number[]>,
+  kept: Int32Array,
+  n: number,
+): Record<string, number[]> {
+  if (kept.length === n) return scores;
+  const keep = new Uint8Array(n);
+  kept.forEach((i) => (keep[i] = 1));
+  for (const v of Object.values(scores)) for (let i = 0; i < v.length; i++) if (!keep[i]) v[i] = NaN;
+  return scores;
+}
+
+/** A result on the kept regions, re-indexed to the matrix as read. */
+function mapToRead(r: PersistenceResult, kept: Int32Array, nRead: number): PersistenceResult {
+  return {
+    ...r,
+    n: nRead,
+    representatives: r.representatives?.map((rep) => ({
+      ...rep,
+      edges: rep.edges.map(([i, j]) => [kept[i], kept[j]] as [number, number]),
+      nodes: rep.nodes.map((v) => kept[v]),
+    })),
+    mergeTree: r.mergeTree.map((ev) => ({
+      ...ev,
+      edge: [kept[ev.edge[0]], kept[ev.edge[1]]] as [number, number],
+      survivor: kept[ev.survivor],
+      absorbed: kept[ev.absorbed],
+    })),
+  };
+}
+
+function curveDimension(name: string): number | null {
+  const m = /^(?:betti|landscape)(\d)/.exec(name);
+  return m ? Number(m[1]) : null;
+}
+
+/** participant_id, then the participants table's columns, then the features. */
+function withParticipants(features: Table, report: CohortReport): Table {
+  const cols = report.columns.map((c) => c.name).filter((c) => c !== 'participant_id');
+  const byId = new Map(report.subjects.map((s) => [s.id, s]));
+  return {
+    columns: ['participant_id', ...cols, ...features.columns.slice(1)],
+    rows: features.rows.map((row) => {
+      const s = byId.get(String(row[0]));
+      return [row[0], ...cols.map((c) => s?.covariates[c] ?? null), ...row.slice(1)];
+    }),
+  };
+}
+
+/**
+ * The families of the statistics stage: all scalar features together; each node measure over
+ * its nodes; each curve over its grid points. A feature that is missing for some subject or
+ * constant across subjects cannot be tested and is left out.
+ */
+function buildFamilies(
+  subjects: string[],
+  featureRows: Array<{ subject: string; features: FeatureRow }>,
+  nodeScores: Array<{ subject: string; scores: Record<string, number[]> }>,
+  curveRows: Array<{ subject: string; curves: Record<string, Float64Array> }>,
+  gridValues: Float64Array,
+  nodes: NodeInfo[] | null,
+): FeatureFamily[] {
+  const testable = (v: ArrayLike<number>): boolean => {
+    let min = Infinity;
+    let max = -Infinity;
+    for (let i = 0; i < v.length; i++) {
+      if (!Number.isFinite(v[i])) return false;
+      min = Math.min(min, v[i]);
+      max = Math.max(max, v[i]);
+    }
+    return max - min > 1e-12 * Math.max(1, Math.abs(max));
+  };
+  const families: FeatureFamily[] = [];
+  const names = featureRows.length > 0 ? Object.keys(featureRows[0].features) : [];
+  families.push({
+    name: 'features',
+    subjects,
+    features: names
+      .map((f) => ({ feature: f, nodeOrPoint: null, values: featureRows.map((r) => r.features[f] ?? NaN) }))
+      .filter((f) => testable(f.values)),
+  });
+  const measures = nodeScores.length > 0 ? Object.keys(nodeScores[0].scores) : [];
+  for (const m of measures) {
+    const n = nodeScores[0].scores[m].length;
+    families.push({
+      name: `nodes:${m}`,
+      subjects,
+      features: Array.from({ length: n }, (_, i) => ({
+        feature: m,
+        nodeOrPoint: nodes?.[i]?.label ?? i,
+        values: nodeScores.map((s) => s.scores[m][i]),
+      })).filter((f) => testable(f.values)),
+    });
+  }
+  const curves = curveRows.length > 0 ? Object.keys(curveRows[0].curves) : [];
+  for (const c of curves) {
+    families.push({
+      name: `curve:${c}`,
+      subjects,
+      features: Array.from(gridValues, (x, i) => ({
+        feature: c,
+        nodeOrPoint: x,
+        values: curveRows.map((r) => r.curves[c][i]),
+      })).filter((f) => testable(f.values)),
+    });
+  }
+  return families;
+}
+
+function subjectMap(dm: SquareMatrix, design: Design, seed: number): NonNullable<StageOutput['embedding']> {
+  const mds = classicalMds(dm);
+  const out: NonNullable<StageOutput['embedding']> = mds.coordinates.map(([x, y], i) => ({
+    subject: design.ids[i],
+    group: design.levels[design.group[i]],
+    x,
+    y,
+    method: 'mds' as const,
+  }));
+  if (dm.n >= 10) {
+    const umap = umapEmbedding(dm, { seed });
+    umap.coordinates.forEach(([x, y], i) =>
+      out.push({ subject: design.ids[i], group: design.levels[design.group[i]], x, y, method: 'umap' }),
+    );
+  }
+  return out;
+}
