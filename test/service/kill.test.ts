@@ -66,7 +66,7 @@ function checkWhole(out: string): void {
     if (name.endsWith('.json')) {
       expect(() => JSON.parse(text), name).not.toThrow();
     } else {
-      expect(name).toMatch(/^(intervals|subjects)\.tsv$/);
+      expect(name).toMatch(/^[a-z0-9-]+\.tsv$/);
       expect(text.endsWith('\n'), `${name} ends with a full line`).toBe(true);
       const lines = text.trimEnd().split('\n');
       const width = lines[0].split('\t').length;

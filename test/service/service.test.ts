@@ -71,7 +71,10 @@ describe('cohort runs', () => {
       expect(events.filter((e) => e.phase === 'filtrations').at(-1)?.done).toBe(10);
       outs.push(outputs(dir));
     }
-    expect(Object.keys(outs[0])).toEqual(['intervals.tsv', 'provenance.json', 'subjects.tsv']);
+    // Stage (1)'s tables; the later stages (features, statistics) add their own beside them.
+    expect(Object.keys(outs[0])).toEqual(
+      expect.arrayContaining(['intervals.tsv', 'provenance.json', 'subjects.tsv']),
+    );
     expect(outs[1]).toEqual(outs[0]);
     expect(outs[2]).toEqual(outs[0]);
 
@@ -155,7 +158,7 @@ describe('cohort runs', () => {
     const other = join(root, 'other');
     await run(other, { workers: 1 });
     writeFileSync(join(other, 'notes.txt'), 'mine');
-    await expect(shared.startRun(request(other))).rejects.toThrow(/notes\.txt/);
+    await expect(shared.startRun(request(other))).rejects.toThrow(/already holds files/);
   });
 });
 
@@ -199,7 +202,12 @@ function memorySource(subjects: number, n: number): CohortSource {
 describe('in-memory cohorts', () => {
   it('records excluded and failed subjects with the reason, goes on, and answers result queries', async () => {
     const cacheDir = join(root, 'mem-cache');
-    const service = createLoopwiseService({ openSource: async () => memorySource(7, 30), cacheDir });
+    // Stage (1) alone (no later stages), so the features table is the service's own interval counts.
+    const service = createLoopwiseService({
+      openSource: async () => memorySource(7, 30),
+      cacheDir,
+      hooks: {},
+    });
     const { runId } = await service.startRun(request(null, { workers: 2 }));
     const summary = await service.waitForRun(runId);
     expect(summary.excluded).toEqual([{ subject: 'm2', reason: 'm2.csv: row 5 is all NaN' }]);
@@ -229,12 +237,19 @@ describe('in-memory cohorts', () => {
     }
     const files = await service.exportRun(runId, join(root, 'mem-export'), false);
     expect(files.files).toEqual(['intervals.tsv', 'subjects.tsv', 'provenance.json']);
+    expect(readFileSync(join(root, 'mem-export', 'subjects.tsv'), 'utf8')).toMatch(
+      /\nm4\tfailed\tcorrelation 1\.5/,
+    );
     await service.close();
   });
 
   it('cancels: stops early, keeps committed subjects, and a re-run reuses them', async () => {
     const cacheDir = join(root, 'cancel-cache');
-    const service = createLoopwiseService({ openSource: async () => memorySource(40, 48), cacheDir });
+    const service = createLoopwiseService({
+      openSource: async () => memorySource(40, 48),
+      cacheDir,
+      hooks: {},
+    });
     let runId = '';
     let cancelled = false;
     service.onProgress((e) => {
@@ -253,7 +268,11 @@ describe('in-memory cohorts', () => {
     expect(existsSync(join(root, 'cancelled', 'intervals.tsv'))).toBe(false);
     expect(listFiles(join(root, 'cancelled')).some((f) => f.includes('loopwise-tmp'))).toBe(false);
 
-    const again = createLoopwiseService({ openSource: async () => memorySource(40, 48), cacheDir });
+    const again = createLoopwiseService({
+      openSource: async () => memorySource(40, 48),
+      cacheDir,
+      hooks: {},
+    });
     const r = await again.startRun(request(join(root, 'cancelled'), { workers: 2 }));
     const s2 = await again.waitForRun(r.runId);
     expect(s2.status).toBe('done');
