@@ -153,6 +153,8 @@ export interface Provenance {
   inputHashes: Record<string, string>;
   /** The cohort folder the subjects were read from. */
   cohortRoot?: string;
+  /** The grid every curve and curve-derived feature is sampled on (set once the features are computed). */
+  grid?: number[];
   /** Each subject's input file (relative to cohortRoot) with the SHA-256 of the file's bytes. */
   inputFiles?: Array<{
     subject: string;
@@ -188,6 +190,8 @@ export interface CurveBand {
 export interface CohortResults {
   runId: string;
   provenance: Provenance;
+  /** The cohort grid of the curves. */
+  grid?: number[];
   /** One row per subject, one column per scalar feature (plus id, group, covariates). */
   features: Table;
   /** Long form: subject, node, label, network, measure, value. */

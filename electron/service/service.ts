@@ -398,6 +398,12 @@ export class LoopwiseService implements LoopwiseApi {
       if (!hook || state.cancelRequested) continue;
       Object.assign(state.results, await hook(ctx));
     }
+    const grid = (state.results as { grid?: number[] }).grid;
+    if (grid && state.provenance) {
+      // The grid is known only once the features stage has seen the cohort: record it too.
+      state.provenance = { ...state.provenance, grid };
+      if (outDir) await ctx.writeJson(tableNames(format).provenance, state.provenance);
+    }
     if (outDir && !state.cancelRequested) await markOutDirComplete(outDir, files);
     return files;
   }

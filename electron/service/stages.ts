@@ -242,7 +242,7 @@ export function cohortStages(): RunHooks {
         }
       }
       await ctx.writeTable('group-curves', bandTable);
-      return { features, nodeScores: nodes, groupCurves };
+      return { features, nodeScores: nodes, groupCurves, grid: Array.from(gridValues) };
     },
 
     async statistics(ctx) {

@@ -113,6 +113,8 @@ describe('loopwise analyze on the sample cohort', () => {
     expect(p.settings.transform).toBe('one-minus');
     expect(p.stats).toMatchObject({ groupColumn: 'group', permutations: 2000, seed: 11 });
     expect(Object.keys(p.inputHashes)).toHaveLength(40);
+    expect(p.grid).toHaveLength(100);
+    expect(p.grid.every((x: number, i: number) => i === 0 || x > p.grid[i - 1])).toBe(true);
     for (const h of Object.values(p.inputHashes)) expect(h).toMatch(/^[0-9a-f]{64}$/);
   });
 
