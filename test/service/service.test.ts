@@ -243,6 +243,36 @@ describe('in-memory cohorts', () => {
     await service.close();
   });
 
+  it('keeps at most 2 × workers matrices in flight, however large the cohort', async () => {
+    const base = memorySource(48, 40);
+    let loaded = 0;
+    let finished = 0;
+    let most = 0;
+    const source: CohortSource = {
+      report: base.report,
+      load: async (entry) => {
+        loaded++;
+        most = Math.max(most, loaded - finished);
+        return base.load(entry);
+      },
+    };
+    const service = createLoopwiseService({
+      openSource: async () => source,
+      cacheDir: join(root, 'bounded'),
+      hooks: {},
+    });
+    service.onProgress((e) => {
+      if (e.phase === 'filtrations') finished = e.done - 1; // subjects done whose matrix was loaded: all but m2
+    });
+    const { runId } = await service.startRun(request(null, { workers: 2 }));
+    const summary = await service.waitForRun(runId);
+    await service.close();
+    expect(summary.analysed).toBe(45);
+    expect(loaded).toBe(47); // every usable subject once (m3's load is tried and fails)
+    expect(most).toBeLessThanOrEqual(4);
+    expect(most).toBeGreaterThanOrEqual(2);
+  });
+
   it('cancels: stops early, keeps committed subjects, and a re-run reuses them', async () => {
     const cacheDir = join(root, 'cancel-cache');
     const service = createLoopwiseService({
