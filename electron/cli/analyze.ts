@@ -14,6 +14,7 @@ import type { CapSetting } from '../engine/types.ts';
 import { createLoopwiseService } from '../service/service.ts';
 import { defaultAnalysisSettings, defaultStatsSettings } from '../service/settings.ts';
 import { UsageError, choiceOption, numberOption, parseArgs } from './args.ts';
+import type { ParsedArgs } from './args.ts';
 
 export const ANALYZE_HELP = `usage: loopwise analyze COHORT_DIR --out DIR [options]
 
@@ -57,6 +58,31 @@ function intList(s: string | undefined, name: string): number[] {
     if (!Number.isInteger(x) || x < 0) throw new UsageError(`--${name} must list integers ≥ 0, got '${t}'`);
     return x;
   });
+}
+
+export const STATS_OPTIONS = ['group', 'covariates', 'permutations', 'seed'];
+
+/** The statistics options given (--group, --covariates, --permutations, --seed); absent ones are left out. */
+export function statsOptions(p: ParsedArgs): Partial<StatsSettings> {
+  const out: Partial<StatsSettings> = {};
+  const group = p.values.get('group');
+  if (group !== undefined) out.groupColumn = group;
+  const covariates = p.values.get('covariates');
+  if (covariates !== undefined)
+    out.covariates = covariates
+      .split(',')
+      .map((s) => s.trim())
+      .filter((s) => s !== '');
+  const permutations = numberOption(
+    p,
+    'permutations',
+    (x) => Number.isInteger(x) && x >= 0,
+    'an integer ≥ 0',
+  );
+  if (permutations !== undefined) out.permutations = permutations;
+  const seed = numberOption(p, 'seed', (x) => Number.isInteger(x), 'an integer');
+  if (seed !== undefined) out.seed = seed;
+  return out;
 }
 
 export function parseAnalyzeArgs(args: string[]): (StartRunRequest & { outDir: string }) | null {
@@ -122,23 +148,7 @@ export function parseAnalyzeArgs(args: string[]): (StartRunRequest & { outDir: s
     representatives: !p.flags.has('no-representatives'),
     dropRegions: intList(p.values.get('drop-regions'), 'drop-regions'),
   };
-  const stats: StatsSettings = {
-    ...defaultStatsSettings(),
-    groupColumn: p.values.get('group') ?? null,
-    covariates: (p.values.get('covariates') ?? '')
-      .split(',')
-      .map((s) => s.trim())
-      .filter((s) => s !== ''),
-  };
-  const permutations = numberOption(
-    p,
-    'permutations',
-    (x) => Number.isInteger(x) && x >= 0,
-    'an integer ≥ 0',
-  );
-  if (permutations !== undefined) stats.permutations = permutations;
-  const seed = numberOption(p, 'seed', (x) => Number.isInteger(x), 'an integer');
-  if (seed !== undefined) stats.seed = seed;
+  const stats: StatsSettings = { ...defaultStatsSettings(), ...statsOptions(p) };
   const participants = p.values.get('participants');
   return {
     // Relative to where the command is run, as a user expects (the readers resolve against the cohort folder).

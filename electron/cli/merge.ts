@@ -3,10 +3,11 @@
  * into the same tables one unsharded run writes (byte for byte, apart from provenance.createdAt),
  * then runs the later stages (statistics) on the whole cohort.
  */
+import type { StatsSettings } from '../api.ts';
 import type { CliIO } from '../cli.ts';
 import { OutDirError, createLoopwiseService } from '../service/service.ts';
 import { UsageError, parseArgs } from './args.ts';
-import { exitCodeOf, printSummary } from './analyze.ts';
+import { STATS_OPTIONS, exitCodeOf, printSummary, statsOptions } from './analyze.ts';
 
 export const MERGE_HELP = `usage: loopwise merge DIR [options]
 
@@ -14,6 +15,8 @@ Combines the shard results in DIR (from 'loopwise analyze COHORT --out DIR --sha
 from 1 to M) into DIR's tables, as a single run writes them.
 
 options:
+  --group COLUMN, --covariates LIST, --permutations N, --seed S
+                the statistics to run on the merged cohort (default: those the shards were given)
   --cache DIR   the cache the shards wrote to, when it is not where they recorded it
   --force       replace Loopwise's tables already in DIR (other files are left alone)
   --csv         write .csv instead of .tsv
@@ -22,13 +25,15 @@ options:
 export async function mergeCommand(args: string[], io: CliIO): Promise<number> {
   const prefix = 'loopwise merge';
   let p;
+  let stats: Partial<StatsSettings>;
   try {
-    p = parseArgs(args, { values: ['cache'], flags: ['force', 'csv', 'help'] });
+    p = parseArgs(args, { values: ['cache', ...STATS_OPTIONS], flags: ['force', 'csv', 'help'] });
     if (p.flags.has('help')) {
       io.out(MERGE_HELP);
       return 0;
     }
     if (p.positionals.length !== 1) throw new UsageError('give exactly one DIR');
+    stats = statsOptions(p);
   } catch (e) {
     if (e instanceof UsageError) {
       io.err(`${prefix}: ${e.message}\n${MERGE_HELP}`);
@@ -42,6 +47,7 @@ export async function mergeCommand(args: string[], io: CliIO): Promise<number> {
     const summary = await service.mergeShards(p.positionals[0], {
       force: p.flags.has('force'),
       tableFormat: p.flags.has('csv') ? 'csv' : 'tsv',
+      stats,
       ...(cache !== undefined ? { cacheDir: cache } : {}),
     });
     printSummary(io, prefix, summary);

@@ -467,7 +467,12 @@ export class LoopwiseService implements LoopwiseApi {
    */
   async mergeShards(
     outDir: string,
-    opts: { force?: boolean; tableFormat?: TableFormat; cacheDir?: string } = {},
+    opts: {
+      force?: boolean;
+      tableFormat?: TableFormat;
+      cacheDir?: string;
+      stats?: Partial<StatsSettings>;
+    } = {},
   ): Promise<RunSummary> {
     const dir = resolve(outDir);
     const shardDir = join(dir, SHARD_DIR);
@@ -513,6 +518,8 @@ export class LoopwiseService implements LoopwiseApi {
       records.push(r);
     }
     const format = opts.tableFormat ?? 'tsv';
+    // Statistics run after the merge, so they may be chosen now; the shards' own are the default.
+    const stats: StatsSettings = { ...first.stats, ...opts.stats };
     await prepareOutDir(dir, opts.force ?? false, Object.values(tableNames(format)));
     const cache = new FiltrationCache(resolve(opts.cacheDir ?? first.cacheDir));
     const runId = `run-${this.nextRun++}`;
@@ -521,7 +528,7 @@ export class LoopwiseService implements LoopwiseApi {
       request: {
         cohort: { dir: first.report.root },
         settings: first.settings,
-        stats: first.stats,
+        stats,
         outDir: dir,
       },
       status: 'running',
@@ -530,7 +537,7 @@ export class LoopwiseService implements LoopwiseApi {
       source: null,
       report: first.report,
       cache,
-      run: { cohortRoot: first.report.root, settings: first.settings, stats: first.stats, records },
+      run: { cohortRoot: first.report.root, settings: first.settings, stats, records },
       provenance: null,
       results: {},
       summary: null,

@@ -71,11 +71,25 @@ describe('loopwise analyze', () => {
       expect(r.code, r.err).toBe(0);
       expect(r.err).toMatch(new RegExp(`shard ${k}/2 done`));
     }
-    const m = await cli(['merge', out]);
+    // Statistics are chosen at the merge; the single run is given the same ones.
+    const m = await cli(['merge', out, '--permutations', '99', '--seed', '3']);
     expect(m.code, m.err).toBe(0);
     const single = join(root, 'single');
-    expect((await cli(['analyze', cohort, '--out', single, '--workers', '2'])).code).toBe(0);
+    const one = await cli([
+      'analyze',
+      cohort,
+      '--out',
+      single,
+      '--workers',
+      '2',
+      '--permutations',
+      '99',
+      '--seed',
+      '3',
+    ]);
+    expect(one.code).toBe(0);
     expect(outputs(out)).toEqual(outputs(single));
+    expect(JSON.parse(outputs(out)['provenance.json']).stats).toMatchObject({ permutations: 99, seed: 3 });
     expect((await cli(['merge', out])).code).toBe(2);
   });
 
