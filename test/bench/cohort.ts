@@ -1,7 +1,8 @@
 /**
  * Cohort benchmark: subjects per second through the whole service (read the CSV, hash, filtration
- * with H1 representatives on the worker pool, commit to the cache, write the tables) at N = 200 and
- * N = 400 with 1 and 2 workers, and the peak resident memory of a 500-subject cohort.
+ * with H1 representatives on the worker pool, commit to the cache, write the tables: stage (1)) at
+ * N = 200 and N = 400 with 1 and 2 workers, and the peak resident memory of a 500-subject cohort,
+ * for stage (1) alone and for the whole run (with features and statistics).
  *
  * Each configuration runs on warm worker threads (a warm-up cohort of two subjects per worker at
  * the same N first, so thread start-up, TypeScript loading and JIT warm-up are not counted) and a
@@ -75,7 +76,8 @@ try {
     writeCohort(warm, { subjects: 4, n, seed: n + 1 });
     let one = 0;
     for (const workers of [1, 2]) {
-      const service = createLoopwiseService();
+      // Stage (1) alone: the filtrations, their cache and tables (the later stages are timed apart).
+      const service = createLoopwiseService({ hooks: {} });
       await analyse(service, warm, join(root, `warm-${n}-${workers}`), workers);
       const t = await analyse(service, cohort, join(root, `out-${n}-${workers}`), workers);
       await service.close();
@@ -89,19 +91,21 @@ try {
     }
   }
 
-  const big = quick ? { subjects: 200, n: 100 } : { subjects: 500, n: 100 };
+  const big = quick ? { subjects: 200, n: 100 } : { subjects: 500, n: 200 };
   const cohort = join(root, 'big');
   writeCohort(cohort, { subjects: big.subjects, n: big.n, seed: 7 });
-  const service = createLoopwiseService();
-  const before = process.memoryUsage.rss();
-  const { summary: s, seconds } = await analyse(service, cohort, join(root, 'out-big'), 2);
-  await service.close();
-  const allMatrices = big.subjects * big.n * big.n * 8;
-  console.log(
-    `\n${big.subjects} subjects at N = ${big.n}, 2 workers: ${seconds.toFixed(1)} s, ` +
-      `peak RSS ${mib(s.peakRssBytes ?? 0)} (process before the run: ${mib(before)}); ` +
-      `all matrices at once would take ${mib(allMatrices)}; cache ${mib(s.cacheBytes ?? 0)}`,
-  );
+  for (const stages of [false, true]) {
+    const service = createLoopwiseService(stages ? {} : { hooks: {} });
+    const before = process.memoryUsage.rss();
+    const { summary: s, seconds } = await analyse(service, cohort, join(root, `out-big-${stages}`), 2);
+    await service.close();
+    const allMatrices = big.subjects * big.n * big.n * 8;
+    console.log(
+      `\n${big.subjects} subjects at N = ${big.n}, 2 workers, ${stages ? 'all stages' : 'stage (1), filtrations'}: ` +
+        `${seconds.toFixed(1)} s, peak RSS ${mib(s.peakRssBytes ?? 0)} (process before the run: ${mib(before)}); ` +
+        `all matrices at once would take ${mib(allMatrices)}; cache ${mib(s.cacheBytes ?? 0)}`,
+    );
+  }
 } finally {
   rmSync(root, { recursive: true, force: true });
 }
