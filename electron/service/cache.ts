@@ -4,7 +4,7 @@
  * run's commit log: a run killed at any moment resumes by reusing every entry present.
  * The folder is the user's to inspect and delete; README.txt inside says so.
  */
-import { mkdir, readFile, readdir, stat, writeFile } from 'node:fs/promises';
+import { mkdir, readFile, readdir, stat } from 'node:fs/promises';
 import { join } from 'node:path';
 import { removeStaleTemps, writeFileAtomic } from './atomic.ts';
 
@@ -52,8 +52,9 @@ export class FiltrationCache {
   /** Creates the folder; removes temporaries of dead writers. */
   async init(): Promise<void> {
     await mkdir(join(this.dir, 'filtrations'), { recursive: true });
+    await removeStaleTemps(this.dir);
     const readme = join(this.dir, 'README.txt');
-    await stat(readme).catch(() => writeFile(readme, README));
+    await stat(readme).catch(() => writeFileAtomic(readme, README));
     for (const sub of await readdir(join(this.dir, 'filtrations'))) {
       await removeStaleTemps(join(this.dir, 'filtrations', sub));
     }

@@ -26,7 +26,7 @@ import type {
   Table,
 } from '../api.ts';
 import { WorkerPool, defaultPoolSize } from '../workers/pool.ts';
-import { writeFileAtomic } from './atomic.ts';
+import { removeStaleTemps, writeFileAtomic } from './atomic.ts';
 import { FiltrationCache } from './cache.ts';
 import { loadSubjectMatrix } from '../io/cohort.ts';
 import { openCohortSource } from './cohort-source.ts';
@@ -357,6 +357,7 @@ export class LoopwiseService implements LoopwiseApi {
         };
         const dir = join(req.outDir as string, SHARD_DIR);
         await mkdir(dir, { recursive: true });
+        await removeStaleTemps(dir);
         await writeFileAtomic(
           join(dir, `shard-${req.shard.index}-of-${req.shard.count}.json`),
           JSON.stringify(manifest),
