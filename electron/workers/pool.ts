@@ -41,6 +41,8 @@ export class WorkerPool {
   private closed = false;
   /** Filtrations completed by the workers (success or engine error), for tests and benchmarks. */
   completed = 0;
+  /** The most workers ever busy at once: shows the pool really ran tasks side by side (counted, not timed). */
+  peakBusy = 0;
 
   constructor(size: number = defaultPoolSize(), entry: URL = DEFAULT_WORKER_ENTRY) {
     if (!(Number.isInteger(size) && size >= 1)) throw new RangeError(`pool size must be ≥ 1, got ${size}`);
@@ -100,6 +102,7 @@ export class WorkerPool {
         }
         return new Promise<WorkerReply>((resolve, reject) => {
           slot.busy = { task: task.taskId, resolve, reject };
+          this.peakBusy = Math.max(this.peakBusy, this.slots.filter((s) => s.busy !== null).length);
           slot.worker.postMessage(message, transfer);
         });
       }
