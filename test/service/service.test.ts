@@ -114,10 +114,17 @@ describe('cohort runs', () => {
     expect(outputs(sharded)).toEqual(outputs(single));
   });
 
-  it('refuses to merge when a shard is missing', async () => {
+  it('refuses to merge when a shard is missing or was run with other settings', async () => {
     const dir = join(root, 'partial');
     await run(dir, { workers: 1, shard: { index: 1, count: 2 } });
     await expect(shared.mergeShards(dir)).rejects.toThrow(/shard 2\/2 not finished/);
+    // The missing shard run with another transform: its filtrations cannot join the others.
+    await run(dir, {
+      workers: 1,
+      shard: { index: 2, count: 2 },
+      settings: { ...defaultAnalysisSettings(), transform: 'sqrt' },
+    });
+    await expect(shared.mergeShards(dir)).rejects.toThrow(/shard 2\/2 was run with other settings/);
   });
 
   it('reuses every filtration when only statistics settings change, recomputes when the transform does', async () => {
