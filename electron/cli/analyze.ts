@@ -18,11 +18,20 @@ import type { ParsedArgs } from './args.ts';
 
 export const ANALYZE_HELP = `usage: loopwise analyze COHORT_DIR --out DIR [options]
 
-Computes the persistence diagrams of every subject of the cohort and writes, into DIR:
+Computes the persistence diagrams of every subject of the cohort, then features, group-level
+filtrations and (with --group) statistics, and writes into DIR:
+  features.tsv     participant_id, the participants table's columns, every scalar feature
+  nodes.tsv        participant_id, node, label, network, measure, value (node participation)
+  networks.tsv     participant_id, network, measure, mean, nodes (when nodes.tsv names networks)
+  curves.tsv       participant_id, curve, dimension, grid_value, value (Betti, landscape, Euler)
   intervals.tsv    participant_id, dimension, birth, death, nodes (an H1 cycle's nodes, 0-based,
                    space-separated; n/a otherwise); death 'inf' for a class that never dies
   subjects.tsv     each subject's status (analysed, failed, excluded) and reason
-  provenance.json  software and engine version, every setting, input files with SHA-256, time
+  group-curves.tsv group, curve, dimension, grid_value, mean, lower, upper (bootstrap 95% band)
+  group-intervals.tsv, group-nodes.tsv   the filtration of each group's mean matrix (with --group)
+  stats.tsv, diagram-tests.tsv, embedding.tsv   group statistics (with --group)
+  provenance.json  software and engine version, every setting, the grid, input files with SHA-256, time
+Loopwise is a research tool, not a diagnostic device.
 Finished subjects are cached (DIR/.loopwise-cache, or --cache): a run that is interrupted resumes
 where it stopped, and a re-run that changes only statistics settings recomputes nothing.
 

@@ -40,11 +40,24 @@ export interface StageContext {
   matrix(entry: SubjectEntry): Promise<SquareMatrix | null>;
   /** Writes a table into the output folder (when there is one) as NAME.tsv or NAME.csv; returns the file name or null. */
   writeTable(name: string, table: Table): Promise<string | null>;
+  /**
+   * Opens a table to be written row by row (for tables too large to hold, e.g. long-form node
+   * scores), committed atomically by close(). Without an output folder the rows are discarded.
+   */
+  openTable(name: string, columns: string[]): Promise<TableSink>;
   /** Writes a JSON file into the output folder (when there is one). */
   writeJson(name: string, value: unknown): Promise<string | null>;
   format: TableFormat;
   progress(phase: ProgressEvent['phase'], done: number, total: number, message?: string): void;
   cancelled(): boolean;
+}
+
+export interface TableSink {
+  row(cells: Array<string | number | null>): Promise<void>;
+  /** Commits the table; returns its file name, or null without an output folder. */
+  close(): Promise<string | null>;
+  /** Drops the partial table. */
+  abort(): Promise<void>;
 }
 
 export type StageOutput = Partial<Omit<CohortResults, 'runId' | 'provenance'>>;

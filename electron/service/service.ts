@@ -26,7 +26,7 @@ import type {
   Table,
 } from '../api.ts';
 import { WorkerPool, defaultPoolSize } from '../workers/pool.ts';
-import { removeStaleTemps, writeFileAtomic } from './atomic.ts';
+import { openAtomicWriter, removeStaleTemps, writeFileAtomic } from './atomic.ts';
 import { FiltrationCache } from './cache.ts';
 import { loadSubjectMatrix } from '../io/cohort.ts';
 import { openCohortSource } from './cohort-source.ts';
@@ -435,13 +435,36 @@ export class LoopwiseService implements LoopwiseApi {
         let text = tableLine(table.columns, format);
         for (const row of table.rows) text += tableLine(row, format);
         await writeFileAtomic(join(outDir, file), text);
-        files.push(file);
+        if (!files.includes(file)) files.push(file);
         return file;
+      },
+      openTable: async (name, columns) => {
+        if (!outDir) return { row: async () => {}, close: async () => null, abort: async () => {} };
+        const file = `${name}.${format}`;
+        const writer = openAtomicWriter(join(outDir, file));
+        // Rows are gathered into chunks of about 1 MB before each write.
+        let chunk = tableLine(columns, format);
+        return {
+          row: async (cells) => {
+            chunk += tableLine(cells, format);
+            if (chunk.length > 1 << 20) {
+              await writer.write(chunk);
+              chunk = '';
+            }
+          },
+          close: async () => {
+            if (chunk) await writer.write(chunk);
+            await writer.close();
+            if (!files.includes(file)) files.push(file);
+            return file;
+          },
+          abort: () => writer.abort(),
+        };
       },
       writeJson: async (name, value) => {
         if (!outDir) return null;
         await writeFileAtomic(join(outDir, name), JSON.stringify(value, null, 2) + '\n');
-        files.push(name);
+        if (!files.includes(name)) files.push(name);
         return name;
       },
       format,

@@ -163,54 +163,86 @@ export function cohortStages(): RunHooks {
         ? grid(settings.gridRange[0], settings.gridRange[1], settings.gridPoints)
         : grid(lo, hi, settings.gridPoints);
 
-      // Pass 2: one subject at a time.
+      // Pass 2: one subject at a time. The long tables go to disk row by row; what the statistics
+      // need (scalar features, node scores, curves) stays in memory as plain numbers.
       featureRows = [];
       nodeScores = [];
       curveRows = [];
       diagramsBySubject = [];
-      const curvesTable: Table = {
-        columns: ['participant_id', 'curve', 'dimension', 'grid_value', 'value'],
+      const curvesSink = await ctx.openTable('curves', [
+        'participant_id',
+        'curve',
+        'dimension',
+        'grid_value',
+        'value',
+      ]);
+      const nodesSink = await ctx.openTable('nodes', [
+        'participant_id',
+        'node',
+        'label',
+        'network',
+        'measure',
+        'value',
+      ]);
+      const withNetworks = ctx.report.nodes?.some((x) => x.network !== null) ?? false;
+      const networksSink = withNetworks
+        ? await ctx.openTable('networks', ['participant_id', 'network', 'measure', 'mean', 'nodes'])
+        : null;
+      const sinks = [curvesSink, nodesSink, ...(networksSink ? [networksSink] : [])];
+      // The renderer gets the long node table in its results up to this size (the file has all rows).
+      const RESULT_NODE_ROWS = 1_000_000;
+      const nodesForResults: Table = {
+        columns: ['participant_id', 'node', 'label', 'network', 'measure', 'value'],
         rows: [],
       };
       let done = 0;
-      for (const rec of ctx.analysed) {
-        if (ctx.cancelled()) return {};
-        ctx.progress('features', done, ctx.analysed.length, rec.id);
-        const cached = await ctx.filtration(rec);
-        const r = resultFromCache(cached, nRead);
-        diagramsBySubject.push(cached.diagrams);
-        const entry = ctx.report.subjects.find((s) => s.id === rec.id);
-        const distances = entry ? await subjectDistances(ctx, entry) : null;
-        featureRows.push({
-          subject: rec.id,
-          features: subjectFeatureRow(r, gridValues, settings, distances ?? undefined),
-        });
-        const kept = keptRegions(nRead, settings.dropRegions);
-        nodeScores.push({
-          subject: rec.id,
-          scores: maskDropped(subjectNodeScores(r, settings), kept, nRead),
-        });
-        const curves = subjectCurves(r, gridValues, settings, distances ?? undefined);
-        curveRows.push({ subject: rec.id, curves });
-        for (const [name, values] of Object.entries(curves)) {
-          const dim = curveDimension(name);
-          values.forEach((v, i) => curvesTable.rows.push([rec.id, name, dim, gridValues[i], v]));
+      try {
+        for (const rec of ctx.analysed) {
+          if (ctx.cancelled()) {
+            for (const sink of sinks) await sink.abort();
+            return {};
+          }
+          ctx.progress('features', done, ctx.analysed.length, rec.id);
+          const cached = await ctx.filtration(rec);
+          const r = resultFromCache(cached, nRead);
+          diagramsBySubject.push(cached.diagrams);
+          const entry = ctx.report.subjects.find((s) => s.id === rec.id);
+          const distances = entry ? await subjectDistances(ctx, entry) : null;
+          featureRows.push({
+            subject: rec.id,
+            features: subjectFeatureRow(r, gridValues, settings, distances ?? undefined),
+          });
+          const kept = keptRegions(nRead, settings.dropRegions);
+          const scores = maskDropped(subjectNodeScores(r, settings), kept, nRead);
+          nodeScores.push({ subject: rec.id, scores });
+          for (const row of nodeScoreTable([{ subject: rec.id, scores }], ctx.report.nodes).rows) {
+            await nodesSink.row(row);
+            if (nodesForResults.rows.length < RESULT_NODE_ROWS) nodesForResults.rows.push(row);
+          }
+          if (networksSink) {
+            for (const row of networkScoreTable([{ subject: rec.id, scores }], ctx.report.nodes).rows) {
+              await networksSink.row(row);
+            }
+          }
+          const curves = subjectCurves(r, gridValues, settings, distances ?? undefined);
+          curveRows.push({ subject: rec.id, curves });
+          for (const [name, values] of Object.entries(curves)) {
+            const dim = curveDimension(name);
+            for (let i = 0; i < values.length; i++)
+              await curvesSink.row([rec.id, name, dim, gridValues[i], values[i]]);
+          }
+          done++;
         }
-        done++;
+        for (const sink of sinks) await sink.close();
+      } catch (e) {
+        for (const sink of sinks) await sink.abort();
+        throw e;
       }
       ctx.progress('features', done, ctx.analysed.length);
 
       const features = withParticipants(featureTable(featureRows), ctx.report);
       await ctx.writeTable('features', features);
-      const nodes = nodeScoreTable(nodeScores, ctx.report.nodes);
-      nodes.columns[0] = 'participant_id';
-      await ctx.writeTable('nodes', nodes);
-      const networks = networkScoreTable(nodeScores, ctx.report.nodes);
-      if (networks.rows.length > 0) {
-        networks.columns[0] = 'participant_id';
-        await ctx.writeTable('networks', networks);
-      }
-      await ctx.writeTable('curves', curvesTable);
+      const nodes = nodesForResults;
 
       // Group means of every curve with a seeded bootstrap band.
       const groupCurves: CurveBand[] = [];
