@@ -435,8 +435,14 @@ function reduceCohomology(
   const workDiam: number[] = [];
   let apparent = 0;
 
-  /** Pushes every coface of simplex (idx, diam) with diameter ≤ threshold. */
-  const pushCofaces = (idx: number, diam: number): void => {
+  /**
+   * Pushes every coface of simplex (idx, diam) with diameter ≤ threshold, enumerated in decreasing
+   * index (w descending). With `emergentCheck`, the first coface of the simplex's own diameter is,
+   * among the cofaces of least diameter, the one of largest index: the column's pivot before any
+   * reduction. If no earlier column holds that pivot, the reduction stops at once (an emergent
+   * pair, of zero length): the enumeration stops and that coface is returned. Otherwise −1.
+   */
+  const pushCofaces = (idx: number, diam: number, emergentCheck: boolean): number => {
     ctx.vertices(idx, k, vs);
     let above = 0;
     let below = idx;
@@ -453,51 +459,25 @@ function reduceCohomology(
         const x = dist[vs[q] * n + w];
         if (x > dm) dm = x;
       }
-      if (dm <= threshold) heap.push(dm, above + ctx.choose(w, k - j + 1) + below);
+      if (dm > threshold) continue;
+      const cof = above + ctx.choose(w, k - j + 1) + below;
+      if (emergentCheck && dm === diam) {
+        if (!pivotOf.has(cof)) return cof;
+        emergentCheck = false;
+      }
+      heap.push(dm, cof);
     }
+    return -1;
   };
 
   for (let c = 0; c < colIdx.length; c++) {
     const sIdx = colIdx[c];
     const sDiam = colDiam[c];
     heap.clear();
-
-    // Enumerate the cofaces in decreasing index (w descending). The first coface with the
-    // column's own diameter is, among the cofaces of least diameter, the one of largest index:
-    // the column's pivot before any reduction. If no earlier column holds that pivot the
-    // reduction stops at once (an emergent pair, of zero length); no need to finish enumerating.
-    ctx.vertices(sIdx, k, vs);
-    let above = 0;
-    let below = sIdx;
-    let j = 0;
-    let emergentChecked = false;
-    let emergent = false;
-    for (let w = n - 1; w >= 0; w--) {
-      if (j < k && vs[j] === w) {
-        below -= ctx.choose(w, k - j);
-        above += ctx.choose(w, k - j + 1);
-        j++;
-        continue;
-      }
-      let dm = sDiam;
-      for (let q = 0; q < k; q++) {
-        const x = dist[vs[q] * n + w];
-        if (x > dm) dm = x;
-      }
-      if (dm > threshold) continue;
-      const cof = above + ctx.choose(w, k - j + 1) + below;
-      if (!emergentChecked && dm === sDiam) {
-        emergentChecked = true;
-        if (!pivotOf.has(cof)) {
-          pivotOf.set(cof, c);
-          addPair(sIdx, sDiam, cof, dm);
-          emergent = true;
-          break;
-        }
-      }
-      heap.push(dm, cof);
-    }
-    if (emergent) {
+    const emergent = pushCofaces(sIdx, sDiam, true);
+    if (emergent >= 0) {
+      pivotOf.set(emergent, c);
+      addPair(sIdx, sDiam, emergent, sDiam);
       apparent++;
       continue;
     }
@@ -517,12 +497,12 @@ function reduceCohomology(
       // Add column `other`: its own coboundary and those of the simplices in its reduction.
       workIdx.push(colIdx[other]);
       workDiam.push(colDiam[other]);
-      pushCofaces(colIdx[other], colDiam[other]);
+      pushCofaces(colIdx[other], colDiam[other], false);
       const s = vStart[other];
       for (let t = 0; t < vLen[other]; t++) {
         workIdx.push(vIdx[s + t]);
         workDiam.push(vDiam[s + t]);
-        pushCofaces(vIdx[s + t], vDiam[s + t]);
+        pushCofaces(vIdx[s + t], vDiam[s + t], false);
       }
     }
     if (!paired) {
