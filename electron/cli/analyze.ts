@@ -9,11 +9,10 @@ import { availableParallelism } from 'node:os';
 import { resolve } from 'node:path';
 import type { AnalysisSettings, ProgressEvent, RunSummary, StartRunRequest, StatsSettings } from '../api.ts';
 import type { CliIO } from '../cli.ts';
-import { DEFAULT_TRANSFORM, TRANSFORMS_FOR } from '../engine/transform.ts';
-import type { CapSetting } from '../engine/types.ts';
 import { createLoopwiseService } from '../service/service.ts';
 import { defaultAnalysisSettings, defaultStatsSettings } from '../service/settings.ts';
-import { UsageError, choiceOption, numberOption, parseArgs } from './args.ts';
+import { UsageError, numberOption, parseArgs } from './args.ts';
+import { FILTRATION_VALUE_OPTIONS, filtrationOptions } from './filtration-options.ts';
 import type { ParsedArgs } from './args.ts';
 
 export const ANALYZE_HELP = `usage: loopwise analyze COHORT_DIR --out DIR [options]
@@ -57,9 +56,6 @@ options:
   --csv                 write .csv instead of .tsv
 `;
 
-const INPUTS = ['correlation', 'weight', 'distance'] as const;
-const ALL_TRANSFORMS = ['one-minus', 'one-minus-abs', 'sqrt', 'inverse', 'neg-log', 'identity'] as const;
-
 function intList(s: string | undefined, name: string): number[] {
   if (s === undefined || s.trim() === '') return [];
   return s.split(',').map((t) => {
@@ -99,11 +95,7 @@ export function parseAnalyzeArgs(args: string[]): (StartRunRequest & { outDir: s
     values: [
       'out',
       'participants',
-      'input',
-      'transform',
-      'max-dim',
-      'cap-distance',
-      'cap-density',
+      ...FILTRATION_VALUE_OPTIONS,
       'drop-regions',
       'group',
       'covariates',
@@ -120,23 +112,7 @@ export function parseAnalyzeArgs(args: string[]): (StartRunRequest & { outDir: s
     throw new UsageError(p.positionals.length === 0 ? 'no COHORT_DIR given' : 'give exactly one COHORT_DIR');
   const out = p.values.get('out');
   if (!out) throw new UsageError('--out DIR is required');
-  const input = choiceOption(p, 'input', INPUTS) ?? 'correlation';
-  const transform = choiceOption(p, 'transform', ALL_TRANSFORMS) ?? DEFAULT_TRANSFORM[input];
-  if (!TRANSFORMS_FOR[input].includes(transform))
-    throw new UsageError(
-      `--transform ${transform} does not apply to --input ${input} (use ${TRANSFORMS_FOR[input].join(', ')})`,
-    );
-  const maxDim = (numberOption(p, 'max-dim', (x) => x === 1 || x === 2, '1 or 2') ?? 1) as 1 | 2;
-  const capDistance = numberOption(p, 'cap-distance', (x) => x >= 0, 'a distance ≥ 0');
-  const capDensity = numberOption(p, 'cap-density', (x) => x > 0 && x <= 1, 'a fraction in (0, 1]');
-  if (capDistance !== undefined && capDensity !== undefined)
-    throw new UsageError('give --cap-distance or --cap-density, not both');
-  const cap: CapSetting =
-    capDistance !== undefined
-      ? { kind: 'distance', value: capDistance }
-      : capDensity !== undefined
-        ? { kind: 'density', value: capDensity }
-        : { kind: 'none' };
+  const { input, transform, maxDim, cap } = filtrationOptions(p);
   const workers = numberOption(p, 'workers', (x) => Number.isInteger(x) && x >= 1, 'an integer ≥ 1');
   let shard: { index: number; count: number } | null = null;
   const shardText = p.values.get('shard');

@@ -4,13 +4,14 @@
  * line on stderr naming it and the problem; the others are still computed; the exit code is then 2.
  */
 import { computePersistence } from '../engine/persistence.ts';
-import { DEFAULT_TRANSFORM, MatrixError, TRANSFORMS_FOR, toDistances } from '../engine/transform.ts';
+import { MatrixError, toDistances } from '../engine/transform.ts';
 import type { InputKind, TransformName } from '../engine/transform.ts';
 import type { CapSetting, PersistenceResult } from '../engine/types.ts';
 import { ENGINE_VERSION } from '../engine/version.ts';
 import { readMatrixFile } from '../io/read-matrix.ts';
 import type { CliIO } from '../cli.ts';
-import { UsageError, choiceOption, numberOption, parseArgs } from './args.ts';
+import { UsageError, parseArgs } from './args.ts';
+import { FILTRATION_VALUE_OPTIONS, filtrationOptions } from './filtration-options.ts';
 
 export const DIAGRAM_HELP = `usage: loopwise diagram FILE... [options]
 
@@ -30,9 +31,6 @@ options:
   --keep-zero           keep intervals of zero length
 `;
 
-const INPUTS = ['correlation', 'weight', 'distance'] as const;
-const ALL_TRANSFORMS = ['one-minus', 'one-minus-abs', 'sqrt', 'inverse', 'neg-log', 'identity'] as const;
-
 export interface DiagramSettings {
   input: InputKind;
   transform: TransformName;
@@ -45,29 +43,12 @@ export interface DiagramSettings {
 
 export function parseDiagramArgs(args: string[]): { files: string[]; settings: DiagramSettings } {
   const p = parseArgs(args, {
-    values: ['input', 'transform', 'max-dim', 'cap-distance', 'cap-density'],
+    values: FILTRATION_VALUE_OPTIONS,
     flags: ['representatives', 'h0-representatives', 'keep-zero', 'help'],
   });
   if (p.flags.has('help')) return { files: [], settings: null as unknown as DiagramSettings };
   if (p.positionals.length === 0) throw new UsageError('no FILE given');
-  const input = choiceOption(p, 'input', INPUTS) ?? 'correlation';
-  const transform = choiceOption(p, 'transform', ALL_TRANSFORMS) ?? DEFAULT_TRANSFORM[input];
-  if (!TRANSFORMS_FOR[input].includes(transform)) {
-    throw new UsageError(
-      `--transform ${transform} does not apply to --input ${input} (use ${TRANSFORMS_FOR[input].join(', ')})`,
-    );
-  }
-  const maxDim = (numberOption(p, 'max-dim', (x) => x === 1 || x === 2, '1 or 2') ?? 1) as 1 | 2;
-  const capDistance = numberOption(p, 'cap-distance', (x) => x >= 0, 'a distance ≥ 0');
-  const capDensity = numberOption(p, 'cap-density', (x) => x > 0 && x <= 1, 'a fraction in (0, 1]');
-  if (capDistance !== undefined && capDensity !== undefined)
-    throw new UsageError('give --cap-distance or --cap-density, not both');
-  const cap: CapSetting =
-    capDistance !== undefined
-      ? { kind: 'distance', value: capDistance }
-      : capDensity !== undefined
-        ? { kind: 'density', value: capDensity }
-        : { kind: 'none' };
+  const { input, transform, maxDim, cap } = filtrationOptions(p);
   return {
     files: p.positionals,
     settings: {
