@@ -195,7 +195,9 @@ export async function startWebServer(api: LoopwiseApi, options: WebServerOptions
       const result = await fn.apply(api, checked.args);
       return send(res, 200, result === undefined ? null : result);
     } catch (e) {
-      return send(res, 500, { error: e instanceof Error ? e.message : String(e) });
+      // A refusal to overwrite the user's files is a conflict the user can resolve, not a server fault.
+      const conflict = e instanceof Error && e.name === 'OutDirError';
+      return send(res, conflict ? 409 : 500, { error: e instanceof Error ? e.message : String(e) });
     }
   }
 

@@ -301,6 +301,11 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
     },
     async exportRun(runId, outDir, overwrite) {
       calls.push({ method: 'exportRun', args: [runId, outDir, overwrite] });
+      if (outDir.endsWith('taken') && !overwrite) {
+        const e = new Error(`${outDir} already holds results; choose another folder or allow replacing`);
+        e.name = 'OutDirError';
+        throw e;
+      }
       return { files: [`${outDir}/features.tsv`] };
     },
   };

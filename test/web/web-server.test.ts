@@ -86,6 +86,13 @@ describe('browser-mode server', () => {
     expect(res.status).toBe(200);
   });
 
+  it('answers 409 with the reason when the service refuses to overwrite earlier results', async () => {
+    const res = await post('exportRun', ['run-1', join(out, 'taken'), false]);
+    expect(res.status).toBe(409);
+    expect((await res.json()).error).toMatch(/already holds results/);
+    expect((await post('exportRun', ['run-1', join(out, 'taken'), true])).status).toBe(200);
+  });
+
   it('answers 400 with the bad field named when arguments do not match the contract', async () => {
     const res = await post('startRun', [
       { cohort: { dir: cohort }, settings: { input: 'banana' }, stats: {} },

@@ -162,18 +162,28 @@ export const CORRECTED_P = [
 ];
 export const RAW_P = ['p', 'p_uncorrected', 'p_value', 'pvalue', 'p_raw'];
 
-/** Subjects on the 2-D map of diagram distances, one trace per group. */
-export function embeddingFigure(results: CohortResults, groups: string[]): Figure | null {
-  const pts = results.embedding;
-  if (!pts || pts.length === 0) return null;
+/** The map methods the run computed (MDS first). */
+export function embeddingMethods(results: CohortResults): Array<'mds' | 'umap'> {
+  const have = new Set((results.embedding ?? []).map((e) => e.method));
+  return (['mds', 'umap'] as const).filter((m) => have.has(m));
+}
+
+/** Subjects on the 2-D map of diagram distances by one method, one trace per group. */
+export function embeddingFigure(
+  results: CohortResults,
+  groups: string[],
+  method: 'mds' | 'umap' = 'mds',
+): Figure | null {
+  const pts = (results.embedding ?? []).filter((e) => e.method === method);
+  if (pts.length === 0) return null;
   const byGroup = new Map<string, typeof pts>();
   for (const p of pts) {
     const key = p.group ?? 'n/a';
     byGroup.set(key, [...(byGroup.get(key) ?? []), p]);
   }
-  const method = pts[0].method.toUpperCase();
+  const label = method.toUpperCase();
   return {
-    name: `subject-map-${pts[0].method}`,
+    name: `subject-map-${method}`,
     data: [...byGroup].map(([g, ps]) => ({
       type: 'scatter',
       mode: 'markers',
@@ -189,9 +199,9 @@ export function embeddingFigure(results: CohortResults, groups: string[]): Figur
       },
       hovertemplate: '%{text}<extra></extra>',
     })),
-    layout: baseLayout(`Subject map (${method} of diagram distances)`, {
-      xaxis: { title: { text: `${method} 1` }, zeroline: false },
-      yaxis: { title: { text: `${method} 2` }, zeroline: false, scaleanchor: 'x' },
+    layout: baseLayout(`Subject map (${label} of diagram distances)`, {
+      xaxis: { title: { text: `${label} 1` }, zeroline: false },
+      yaxis: { title: { text: `${label} 2` }, zeroline: false, scaleanchor: 'x' },
     }),
   };
 }

@@ -131,6 +131,7 @@ export class Session {
   private async finish(runId: string): Promise<void> {
     await this.attempt(async () => {
       this.summary = await this.door.runSummary(runId);
+      if (this.summary) this.failures = mergeFailures(this.failures, this.summary.failures);
       if (this.summary?.status === 'done') this.results = await this.door.cohortResults(runId);
     });
   }

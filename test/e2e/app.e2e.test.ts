@@ -1,0 +1,230 @@
+/**
+ * The whole app in a real browser: browser mode over the real service and the bundled sample
+ * cohort, driven through the UI as a user would. Screenshots of each view go to test-results/e2e/.
+ */
+import { existsSync, readFileSync, readdirSync } from 'node:fs';
+import { join } from 'node:path';
+import { crc32 } from 'node:zlib';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Page } from 'playwright-core';
+import { hasChromium, launch, type Browser } from './support/browser.ts';
+import { artefacts, messyCohort, startApp, type RunningApp } from './support/app.ts';
+
+let app: RunningApp;
+let browser: Browser;
+let page: Page;
+
+const shot = (name: string) => page.screenshot({ path: join(artefacts, `${name}.png`), fullPage: true });
+const tab = (name: string) => page.locator('nav').getByRole('button', { name, exact: true }).click();
+const plot = (name: string) => page.locator(`.plot[data-figure="${name}"]`);
+const drawn = async (name: string) => {
+  await plot(name).locator('.main-svg').first().waitFor({ timeout: 30_000 });
+};
+
+/** PNG chunks as [type, data], each CRC checked with node's zlib.crc32 (an implementation independent of ours). */
+function pngChunks(bytes: Buffer): Array<[string, Buffer]> {
+  expect([...bytes.subarray(0, 8)]).toEqual([137, 80, 78, 71, 13, 10, 26, 10]);
+  const out: Array<[string, Buffer]> = [];
+  let at = 8;
+  while (at < bytes.length) {
+    const len = bytes.readUInt32BE(at);
+    const type = bytes.subarray(at + 4, at + 8).toString('latin1');
+    const data = bytes.subarray(at + 8, at + 8 + len);
+    expect(bytes.readUInt32BE(at + 8 + len), `CRC of ${type}`).toBe(
+      crc32(bytes.subarray(at + 4, at + 8 + len)),
+    );
+    out.push([type, data]);
+    at += 12 + len;
+  }
+  return out;
+}
+
+async function runAnalysis(expectStatus = 'done'): Promise<string> {
+  await tab('Analysis');
+  await page.locator('input[name=permutations]').fill('199');
+  await page.locator('input[name=permutations]').dispatchEvent('change');
+  await page.getByRole('button', { name: 'Run analysis' }).click();
+  await page.getByTestId('run-progress').waitFor();
+  const summary = page.getByTestId('run-summary');
+  await summary.waitFor({ timeout: 170_000 });
+  const text = (await summary.textContent()) ?? '';
+  expect(text).toContain(`Run ${expectStatus}`);
+  return text;
+}
+
+describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
+  beforeAll(async () => {
+    app = await startApp();
+    browser = await launch();
+    page = browser.page;
+  });
+  afterAll(async () => {
+    await browser?.close();
+    await app?.close();
+  });
+
+  it('opens the sample cohort in one click and shows the study with its QC report', async () => {
+    await page.goto(app.server.url);
+    await expect.poll(() => page.getByRole('note').textContent()).toContain('not a diagnostic device');
+    await page.getByRole('button', { name: 'Open the sample cohort' }).click();
+    const summary = page.getByTestId('cohort-summary');
+    await summary.waitFor();
+    const text = (await summary.textContent()) ?? '';
+    expect(text).toMatch(/40\s*subjects/);
+    expect(text).toMatch(/60\s*regions/);
+    expect(text).toMatch(/20\s*training/);
+    await page.getByRole('heading', { name: 'Quality control' }).waitFor();
+    expect(await page.locator('select[name=group-column]').inputValue()).toBe('group');
+    await shot('1-study');
+  });
+
+  it('runs the analysis with a progress bar and reaches the results', async () => {
+    const text = await runAnalysis();
+    expect(text).toMatch(/40 computed, 0 from cache,\s+0 failed/);
+    expect(await page.getByRole('progressbar').getAttribute('aria-valuenow')).toBe('100');
+    await shot('2-analysis');
+  });
+
+  it('shows mean Betti curves with bands, the Euler curve and feature distributions by group', async () => {
+    await tab('Groups');
+    await drawn('curve-betti1');
+    await drawn('curve-euler');
+    // One band and one mean per group: four traces, each with a drawn path.
+    const lines = plot('curve-betti1').locator('.scatterlayer .trace');
+    expect(await lines.count()).toBe(4);
+    const featureName = await page.locator('select[name=feature]').inputValue();
+    expect(featureName).not.toBe('');
+    await drawn(`distribution-${featureName}`);
+    expect(await plot(`distribution-${featureName}`).locator('.violinlayer .trace').count()).toBe(2);
+    await shot('3-groups');
+  });
+
+  it('shows the ranked region chart and the node maps', async () => {
+    await tab('Regions');
+    const measure = await page.locator('select[name=measure]').inputValue();
+    await drawn(`regions-${measure}`);
+    expect(await plot(`regions-${measure}`).locator('.barlayer .point').count()).toBe(40);
+    await drawn(`regions-${measure}-axial`);
+    await drawn(`regions-${measure}-sagittal`);
+    await shot('4-regions');
+  });
+
+  it('opens a subject, selects an interval and draws its cycle', async () => {
+    await tab('Subject');
+    await page.locator('select[name=subject]').selectOption('sub-02');
+    await drawn('barcode');
+    await drawn('persistence-diagram');
+    await drawn('matrix-sub-02');
+    const rows = page.getByTestId('interval-table').locator('tbody tr');
+    await rows.nth(2).waitFor();
+    const id = (await rows.nth(2).locator('td').first().textContent())?.trim();
+    await rows.nth(2).click();
+    const heading = page.getByTestId('selected-interval');
+    await expect.poll(() => heading.textContent()).toMatch(/Selected: H1 \[.*a cycle through \d+ regions/);
+    expect(await rows.nth(2).getAttribute('class')).toContain('selected-row');
+    // The selection is shared: the diagram draws a ring around the same interval.
+    expect(
+      await plot('persistence-diagram').locator('.scatterlayer .trace').last().locator('.point').count(),
+    ).toBe(1);
+    // The cycle's edges are drawn on both projections.
+    const edges = plot('cycle-axial').locator('.scatterlayer .trace').nth(1).locator('path.js-line');
+    expect(await edges.count()).toBeGreaterThan(0);
+    expect(await edges.first().getAttribute('d')).toMatch(/^M.+L/);
+    expect(id).toMatch(/^1:\d+$/);
+    await shot('5-subject');
+  });
+
+  it('exports the tables to the output folder and a table and figures as downloads, with provenance', async () => {
+    await tab('Export');
+    const target = join(app.outDir, 'first-export');
+    await page.locator('input[name=out-dir]').fill(target);
+    await page.getByRole('button', { name: 'Export tables' }).click();
+    await page.getByTestId('export-files').waitFor({ timeout: 60_000 });
+    const written = readdirSync(target);
+    expect(written).toContain('provenance.json');
+    const provenance = JSON.parse(readFileSync(join(target, 'provenance.json'), 'utf8'));
+    expect(provenance.tool).toBe('loopwise');
+    expect(Object.keys(provenance.inputHashes)).toHaveLength(40);
+    await shot('6-export');
+
+    // A second export to the same folder is refused: nothing the user made is overwritten.
+    await page.getByRole('button', { name: 'Export tables' }).click();
+    await expect.poll(() => page.getByTestId('export-message').textContent()).toMatch(/HTTP 409/);
+
+    // One click saves the table and its provenance sidecar.
+    const saved = new Map<string, string>();
+    const bothSaved = new Promise<void>((ok) => {
+      const onDownload = async (d: import('playwright-core').Download) => {
+        saved.set(d.suggestedFilename(), await d.path());
+        if (saved.size === 2) {
+          page.off('download', onDownload);
+          ok();
+        }
+      };
+      page.on('download', onDownload);
+    });
+    await page.locator('button[data-table=features]').click();
+    await bothSaved;
+    const tsv = saved.get('features.tsv')!;
+    const sidecar = saved.get('features.provenance.json')!;
+    const lines = readFileSync(tsv, 'utf8').trimEnd().split('\n');
+    expect(lines).toHaveLength(41);
+    expect(lines[0].split('\t')[0]).toBe('participant_id');
+    expect(JSON.parse(readFileSync(sidecar, 'utf8')).tool).toBe('loopwise');
+
+    await tab('Groups');
+    await drawn('curve-betti1');
+    const svgButton = plot('curve-betti1').getByRole('button', { name: 'SVG' });
+    const [svgDownload] = await Promise.all([page.waitForEvent('download'), svgButton.click()]);
+    expect(svgDownload.suggestedFilename()).toBe('curve-betti1.svg');
+    const svg = readFileSync(await svgDownload.path(), 'utf8');
+    expect(svg).toMatch(/^<svg/);
+    expect(svg).toContain('<metadata id="loopwise:provenance">');
+
+    const pngButton = plot('curve-betti1').getByRole('button', { name: 'PNG' });
+    const [pngDownload] = await Promise.all([page.waitForEvent('download'), pngButton.click()]);
+    const chunks = pngChunks(readFileSync(await pngDownload.path()));
+    expect(chunks[0][0]).toBe('IHDR');
+    const itxt = chunks.find(([t]) => t === 'iTXt');
+    expect(itxt?.[1].toString('utf8')).toMatch(/^loopwise:provenance\0\0\0\0\0\{"tool":"loopwise"/);
+    expect(chunks.at(-1)?.[0]).toBe('IEND');
+  });
+
+  it('shows a malformed cohort’s findings and still runs its good subjects', async () => {
+    await tab('Study');
+    await page.locator('input[name=cohort-dir]').fill(messyCohort);
+    await page.getByRole('button', { name: 'Open', exact: true }).click();
+    await page.getByTestId('qc-report').waitFor();
+    expect(await page.getByTestId('qc-report').locator('tr.error-row').count()).toBeGreaterThan(0);
+    const summary = (await page.getByTestId('cohort-summary').textContent()) ?? '';
+    const usable = Number(/(\d+)\s*usable/.exec(summary)?.[1]);
+    expect(usable).toBeGreaterThan(0);
+    await page.locator('select[name=qc-severity]').selectOption('error');
+    await shot('7-messy-study');
+    // Too few good subjects per group for a comparison: analyse them without one.
+    await page.locator('select[name=group-column]').selectOption('');
+    const text = await runAnalysis();
+    const computed = Number(/(\d+) computed/.exec(text)?.[1]);
+    expect(computed).toBeGreaterThan(0);
+    expect(computed).toBeLessThanOrEqual(usable);
+    await shot('8-messy-run');
+  });
+
+  it('refuses a folder outside the ones this session may use', async () => {
+    await tab('Study');
+    await page.locator('input[name=cohort-dir]').fill('/etc');
+    await page.getByRole('button', { name: 'Open', exact: true }).click();
+    await expect.poll(() => page.getByRole('alert').textContent()).toMatch(/outside the folders/);
+  });
+
+  it('logged no errors in the page', () => {
+    // The two refusals the tests provoke are expected: a folder outside the session's (403) and
+    // an export over earlier results (409).
+    expect(browser.errors.filter((e) => !/(HTTP|status of) (403|409)/.test(e))).toEqual([]);
+  });
+});
+
+it('has Chromium for the end-to-end tests (CI installs it)', () => {
+  if (!hasChromium) console.warn('skipped: /usr/bin/chromium is missing');
+  expect(existsSync('/usr/bin/chromium') || !hasChromium).toBe(true);
+});
