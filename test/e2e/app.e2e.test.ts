@@ -201,7 +201,12 @@ describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
     expect(usable).toBeGreaterThan(0);
     await page.locator('select[name=qc-severity]').selectOption('error');
     await shot('7-messy-study');
-    // Too few good subjects per group for a comparison: analyse them without one.
+    // Too few good subjects per group for a comparison: the run is held back with the reason…
+    await tab('Analysis');
+    await page.getByText(/Group training of group has fewer than 2 usable subjects/).waitFor();
+    expect(await page.getByRole('button', { name: 'Run analysis' }).isDisabled()).toBe(true);
+    // …and the good subjects are analysed without one.
+    await tab('Study');
     await page.locator('select[name=group-column]').selectOption('');
     const text = await runAnalysis();
     const computed = Number(/(\d+) computed/.exec(text)?.[1]);

@@ -15,6 +15,7 @@ import { usesOnlySvg } from '../../renderer/src/lib/figure.ts';
 import { formatCell, formatDuration, formatP } from '../../renderer/src/lib/format.ts';
 import {
   curveFigure,
+  defaultFeature,
   distributionFigure,
   featureByGroup,
   featureColumns,
@@ -45,8 +46,10 @@ import {
   diagramFigure,
   infinityLine,
   intervals,
+  nodeScoreRows,
   notableIntervals,
   representativeOf,
+  subjectNodeScores,
 } from '../../renderer/src/lib/subject.ts';
 import { tableText } from '../../renderer/src/lib/tables.ts';
 import { createFakeApi } from '../web/fake-api.ts';
@@ -446,5 +449,61 @@ describe('the statistics stage’s table layout', () => {
     expect(statsFor(stats, 'h1_count')).toHaveLength(1);
     expect(statsFor(stats, 'strength')).toEqual([]);
     expect(statsFor(stats, 'betti1')).toEqual([]);
+  });
+});
+
+describe('defaults chosen for the user', () => {
+  it('leaves out constant features and shows first the one with the smallest corrected p', () => {
+    const features: Table = {
+      columns: ['participant_id', 'group', 'h0_count', 'h1_count', 'h1_entropy'],
+      rows: [
+        ['s1', 'a', 60, 3, 1.2],
+        ['s2', 'b', 60, 5, 1.1],
+      ],
+    };
+    const names = featureColumns(features, []);
+    expect(names).toEqual(['h1_count', 'h1_entropy']);
+    const stats: Table = {
+      columns: ['family', 'feature', 'p_fwer'],
+      rows: [
+        ['features', 'h1_count', 0.3],
+        ['features', 'h1_entropy', 0.02],
+        ['nodes:h1_count', 'h1_count', 0.001],
+      ],
+    };
+    expect(defaultFeature(names, stats)).toBe('h1_entropy');
+    expect(defaultFeature(names, null)).toBe('h1_count');
+  });
+
+  it('takes a subject’s node scores from the run’s long table when its own result has none', () => {
+    const s = { id: 's2', group: null, n: 3, matrix: [], diagrams: [], representatives: [], nodeScores: {} };
+    const table: Table = {
+      columns: ['participant_id', 'node', 'label', 'network', 'measure', 'value'],
+      rows: [
+        ['s1', 0, 'a', null, 'strength', 9],
+        ['s2', 2, 'c', null, 'strength', 3],
+        ['s2', 0, 'a', null, 'strength', 1],
+        ['s2', 1, 'b', null, 'participation', 4],
+      ],
+    };
+    const scores = subjectNodeScores(s, table);
+    expect(scores.strength[0]).toBe(1);
+    expect(scores.strength[2]).toBe(3);
+    expect(Number.isNaN(scores.strength[1])).toBe(true);
+    expect(nodeScoreRows(s, [], scores).rows[1]).toEqual([1, '2', null, null, 4]);
+  });
+});
+
+describe('group comparisons the data cannot support', () => {
+  it('refuses a group column with a group of fewer than two usable subjects', () => {
+    const few: CohortReport = {
+      ...report,
+      subjects: report.subjects.map((s, i) => ({ ...s, usable: i < 3 })),
+    };
+    // sub-01, sub-03 are control, sub-02 patient.
+    expect(settingsProblems(defaults.settings, defaults.stats, few)).toEqual([
+      'Group patient of group has fewer than 2 usable subjects; choose no group column instead.',
+    ]);
+    expect(settingsProblems(defaults.settings, { ...defaults.stats, groupColumn: null }, few)).toEqual([]);
   });
 });

@@ -78,12 +78,37 @@ export function curveFigure(bands: CurveBand[], curve: string, groups: string[])
   };
 }
 
-/** Scalar feature columns of the features table: numeric, and neither identifiers, group nor covariates. */
+/**
+ * Scalar feature columns of the features table: numeric, varying across subjects (a constant,
+ * like H0's count in a full filtration, has no distribution to show), and neither identifiers,
+ * group nor covariates.
+ */
 export function featureColumns(features: Table, exclude: string[]): string[] {
   const skip = new Set(['subject', 'id', 'participant_id', 'group', ...exclude].map((s) => s.toLowerCase()));
-  return features.columns.filter(
-    (c, i) => !skip.has(c.toLowerCase()) && features.rows.some((r) => typeof r[i] === 'number'),
-  );
+  return features.columns.filter((c, i) => {
+    if (skip.has(c.toLowerCase())) return false;
+    const values = features.rows
+      .map((r) => r[i])
+      .filter((v): v is number => typeof v === 'number' && Number.isFinite(v));
+    return values.length > 0 && values.some((v) => v !== values[0]);
+  });
+}
+
+/** The feature shown first: the one with the smallest corrected p in the run's tests, else the first. */
+export function defaultFeature(features: string[], stats: Table | null): string {
+  let best = features[0] ?? '';
+  let bestP = Infinity;
+  for (const f of features) {
+    for (const row of statsFor(stats, f)) {
+      const key = CORRECTED_P.find((c) => c in row);
+      const p = key ? asNumber(row[key]) : null;
+      if (p !== null && p < bestP) {
+        bestP = p;
+        best = f;
+      }
+    }
+  }
+  return best;
 }
 
 /** Values of one feature split by group (subjects with a missing group or value are left out). */

@@ -56,6 +56,22 @@ export function settingsProblems(
     if (bad.length) out.push(`Regions ${bad.join(', ')} do not exist (the cohort has ${n}).`);
     if (st.groupColumn && !report.columns.some((c) => c.name === st.groupColumn)) {
       out.push(`The participants table has no column ${st.groupColumn}.`);
+    } else if (st.groupColumn) {
+      // A group comparison needs two subjects per group at least (a variance per group).
+      const col = st.groupColumn;
+      const sizes = new Map<string, number>();
+      for (const x of report.subjects) {
+        const g = x.covariates[col];
+        if (x.usable && g !== null && g !== undefined) sizes.set(String(g), (sizes.get(String(g)) ?? 0) + 1);
+      }
+      const small = [...sizes].filter(([, k]) => k < 2).map(([g]) => g);
+      if (sizes.size < 2)
+        out.push(`Comparing groups needs two groups in ${col}; choose no group column instead.`);
+      else if (small.length) {
+        out.push(
+          `Group ${small.join(', ')} of ${col} has fewer than 2 usable subjects; choose no group column instead.`,
+        );
+      }
     }
   }
   return out;
