@@ -113,6 +113,25 @@ export function checkOpenCohort(v: unknown): OpenCohortRequest {
   const nodes = optStr(v.nodes, 'cohort.nodes');
   if (participants !== undefined) req.participants = participants;
   if (nodes !== undefined) req.nodes = nodes;
+  const variable = optStr(v.variable, 'cohort.variable');
+  const fileColumn = optStr(v.fileColumn, 'cohort.fileColumn');
+  const match = optStr(v.match, 'cohort.match');
+  if (variable !== undefined) req.variable = variable;
+  if (fileColumn !== undefined) req.fileColumn = fileColumn;
+  if (match !== undefined) req.match = match;
+  if (v.timeSeries !== undefined && v.timeSeries !== null)
+    req.timeSeries = bool(v.timeSeries, 'cohort.timeSeries');
+  if (v.columnKinds !== undefined && v.columnKinds !== null) {
+    if (!isObj(v.columnKinds)) throw new BadRequest('cohort.columnKinds must be an object');
+    const kinds: Record<string, 'numeric' | 'categorical'> = {};
+    for (const [k, kind] of Object.entries(v.columnKinds)) {
+      kinds[str(k, 'cohort.columnKinds key', 256)] = oneOf(kind, `cohort.columnKinds.${k}`, [
+        'numeric',
+        'categorical',
+      ] as const);
+    }
+    req.columnKinds = kinds;
+  }
   return req;
 }
 
@@ -176,6 +195,11 @@ function checkStartRun(v: unknown): StartRunRequest {
     settings: checkSettings(v.settings),
     stats: checkStats(v.stats),
     outDir: v.outDir === null || v.outDir === undefined ? null : str(v.outDir, 'outDir'),
+    // Never taken from a door: cacheDir (a path the service writes), shard and workers (CLI matters).
+    ...(v.force === undefined ? {} : { force: bool(v.force, 'force') }),
+    ...(v.tableFormat === undefined
+      ? {}
+      : { tableFormat: oneOf(v.tableFormat, 'tableFormat', ['tsv', 'csv'] as const) }),
   };
 }
 

@@ -4,7 +4,6 @@ import { tmpdir } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { createLoopwiseService } from '../../../electron/service/service.ts';
-import { cohortStages } from '../../../electron/service/stages.ts';
 import { startWebServer, type WebServer } from '../../../electron/web.ts';
 
 export const repo = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..', '..');
@@ -27,7 +26,7 @@ export async function startApp(): Promise<RunningApp> {
   const outDir = join(work, 'out');
   mkdirSync(outDir);
   mkdirSync(artefacts, { recursive: true });
-  const api = createLoopwiseService({ cacheDir: join(work, 'cache'), workers: 2, hooks: cohortStages() });
+  const api = createLoopwiseService({ cacheDir: join(work, 'cache'), workers: 2 });
   const server = await startWebServer(api, {
     port: 0,
     roots: [sampleRoot, outDir],
