@@ -82,6 +82,10 @@ describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
     const text = await runAnalysis();
     expect(text).toMatch(/40 computed, 0 from cache,\s+0 failed/);
     expect(await page.getByRole('progressbar').getAttribute('aria-valuenow')).toBe('100');
+    // The same settings again: every filtration comes from the cache, and the run panel says so.
+    const again = await runAnalysis();
+    expect(again).toMatch(/0 computed, 40 from cache/);
+    await page.getByText(/Subjects \(40 from cache\)/).waitFor();
     await shot('2-analysis');
   });
 

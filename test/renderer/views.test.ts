@@ -108,6 +108,24 @@ describe('Analysis and Export', () => {
     expect(api.calls.at(-1)).toEqual({ method: 'exportRun', args: ['run-1', '/data/out/run1', false] });
   });
 
+  it('cancels a run: the bar stops, the summary says so and no results appear', async () => {
+    const { api, session } = await openApp();
+    await fireEvent.click(screen.getByRole('button', { name: 'Open the sample cohort' }));
+    await waitFor(() => expect(session.report).not.toBeNull());
+    await fireEvent.click(within(screen.getByRole('navigation')).getByRole('button', { name: 'Analysis' }));
+    await fireEvent.click(screen.getByRole('button', { name: 'Run analysis' }));
+    const cancel = screen.getByRole('button', { name: 'Cancel' });
+    await waitFor(() => expect(cancel).toHaveProperty('disabled', false));
+    await fireEvent.click(cancel);
+    await waitFor(() => expect(screen.getByTestId('run-summary').textContent).toMatch(/Run cancelled/));
+    expect(api.calls.some((c) => c.method === 'cancelRun')).toBe(true);
+    expect(session.results).toBeNull();
+    expect(within(screen.getByRole('navigation')).getByRole('button', { name: 'Groups' })).toHaveProperty(
+      'disabled',
+      true,
+    );
+  });
+
   it('refuses to start with settings the service would reject, and says why', async () => {
     const { session } = await openApp();
     await fireEvent.click(screen.getByRole('button', { name: 'Open the sample cohort' }));

@@ -273,7 +273,20 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
     async cancelRun(runId) {
       calls.push({ method: 'cancelRun', args: [runId] });
       const run = runs.get(runId);
-      if (run) run.cancelled = true;
+      if (run && !run.cancelled) {
+        run.cancelled = true;
+        emit({
+          runId,
+          phase: 'cancelled',
+          done: 0,
+          total: 9,
+          reused: 0,
+          currentSubject: null,
+          elapsedMs: 0,
+          etaMs: null,
+          failures: [],
+        });
+      }
     },
     onProgress(listener) {
       listeners.add(listener);
@@ -284,7 +297,7 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
       if (!runs.has(runId)) return null;
       return {
         runId,
-        status: 'done',
+        status: runs.get(runId)!.cancelled ? 'cancelled' : 'done',
         computed: 9,
         reused: 0,
         failures: [{ subject: 'sub-10', reason: 'not square' }],
