@@ -135,6 +135,19 @@ describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
     expect(await edges.count()).toBeGreaterThan(0);
     expect(await edges.first().getAttribute('d')).toMatch(/^M.+L/);
     expect(id).toMatch(/^1:\d+$/);
+
+    // Selecting in the diagram selects in the barcode too: click another H1 point.
+    const before = await heading.textContent();
+    const h1Points = plot('persistence-diagram').locator('.scatterlayer .trace').nth(2).locator('.point');
+    const box = await h1Points.first().boundingBox();
+    expect(box).not.toBeNull();
+    await page.mouse.move(box!.x + box!.width / 2, box!.y + box!.height / 2);
+    await page.mouse.down();
+    await page.mouse.up();
+    await expect.poll(() => heading.textContent()).not.toBe(before);
+    expect(await heading.textContent()).toMatch(/Selected: H1 \[/);
+    const bar = plot('barcode').locator('.scatterlayer .trace').last().locator('path.js-line');
+    expect(await bar.count()).toBe(1);
     await shot('5-subject');
   });
 
