@@ -111,8 +111,12 @@ export function checkOpenCohort(v: unknown): OpenCohortRequest {
   const req: OpenCohortRequest = { dir: str(v.dir, 'cohort.dir') };
   const participants = optStr(v.participants, 'cohort.participants');
   const nodes = optStr(v.nodes, 'cohort.nodes');
-  if (participants !== undefined) req.participants = participants;
-  if (nodes !== undefined) req.nodes = nodes;
+  // Tables named relative to the cohort folder are made absolute here, so the path the door checks
+  // is the path the service reads (whatever folder the service resolves relative names against).
+  const absolute = (p: string) => p.startsWith('/') || /^[A-Za-z]:[\\/]/.test(p) || p.startsWith('\\\\');
+  const within = (p: string) => (absolute(p) ? p : `${req.dir.replace(/[\\/]+$/, '')}/${p}`);
+  if (participants !== undefined) req.participants = within(participants);
+  if (nodes !== undefined) req.nodes = within(nodes);
   const variable = optStr(v.variable, 'cohort.variable');
   const fileColumn = optStr(v.fileColumn, 'cohort.fileColumn');
   const match = optStr(v.match, 'cohort.match');

@@ -97,6 +97,11 @@ describe('browser-mode server', () => {
     expect((await post('openCohort', [{ dir: cohort, columnKinds: { age: 'text' } }])).status).toBe(400);
   });
 
+  it('takes tables named relative to the cohort folder inside it', async () => {
+    expect((await post('openCohort', [{ dir: cohort, participants: 'participants.tsv' }])).status).toBe(200);
+    expect(api.calls.at(-1)?.args[0]).toEqual({ dir: cohort, participants: `${cohort}/participants.tsv` });
+  });
+
   it('lets an output folder that does not exist yet through when it lies inside a root', async () => {
     const res = await post('exportRun', ['run-1', join(out, 'new', 'deeper'), false]);
     expect(res.status).toBe(200);
