@@ -48,6 +48,7 @@ import {
   prepareOutDir,
   tableLine,
   tableNames,
+  unmatchedParticipants,
   writeRunTables,
 } from './tables.ts';
 import type { RunRecords, SubjectRecord, TableFormat } from './tables.ts';
@@ -370,7 +371,9 @@ export class LoopwiseService implements LoopwiseApi {
         settings: req.settings,
         stats: req.stats,
         records: shareRecords,
+        unmatched: unmatchedParticipants(report),
       };
+      for (const u of state.run.unmatched ?? []) excluded.push({ subject: u.id, reason: u.reason });
       const files = await this.finish(state, req.outDir, format);
       return await finishSummary(state.cancelRequested ? 'cancelled' : 'done', files);
     } catch (e) {
@@ -561,7 +564,13 @@ export class LoopwiseService implements LoopwiseApi {
       source: null,
       report: first.report,
       cache,
-      run: { cohortRoot: first.report.root, settings: first.settings, stats, records },
+      run: {
+        cohortRoot: first.report.root,
+        settings: first.settings,
+        stats,
+        records,
+        unmatched: unmatchedParticipants(first.report),
+      },
       provenance: null,
       results: {},
       summary: null,
@@ -576,9 +585,12 @@ export class LoopwiseService implements LoopwiseApi {
     const failures = records
       .filter((r) => r.status === 'failed')
       .map((r) => ({ subject: r.id, reason: r.reason ?? '' }));
-    const excluded = records
-      .filter((r) => r.status === 'excluded')
-      .map((r) => ({ subject: r.id, reason: r.reason ?? '' }));
+    const excluded = [
+      ...records
+        .filter((r) => r.status === 'excluded')
+        .map((r) => ({ subject: r.id, reason: r.reason ?? '' })),
+      ...unmatchedParticipants(first.report).map((u) => ({ subject: u.id, reason: u.reason })),
+    ];
     const summary: RunSummary = {
       runId,
       status: 'done',

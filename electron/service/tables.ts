@@ -6,7 +6,7 @@
  */
 import { mkdir, readFile, readdir } from 'node:fs/promises';
 import { join } from 'node:path';
-import type { AnalysisSettings, Provenance, StatsSettings } from '../api.ts';
+import type { AnalysisSettings, CohortReport, Provenance, StatsSettings } from '../api.ts';
 import { ENGINE_VERSION } from '../engine/version.ts';
 import pkg from '../../package.json' with { type: 'json' };
 import { openAtomicWriter, removeStaleTemps, writeFileAtomic } from './atomic.ts';
@@ -40,6 +40,15 @@ export interface RunRecords {
   stats: StatsSettings;
   /** One record per subject of the cohort, in cohort order. */
   records: SubjectRecord[];
+  /** Participants the cohort check found no matrix for (listed in subjects.tsv as excluded). */
+  unmatched?: Array<{ id: string; reason: string }>;
+}
+
+/** Participants of the report without a matrix: the QC findings 'no-matrix'. */
+export function unmatchedParticipants(report: CohortReport): Array<{ id: string; reason: string }> {
+  return report.findings
+    .filter((f) => f.code === 'no-matrix' && f.subject !== null)
+    .map((f) => ({ id: f.subject as string, reason: f.message }));
 }
 
 export const OUT_MARKER = '.loopwise-run.json';
@@ -224,6 +233,23 @@ export async function writeRunTables(
               entry ? (entry.diagrams[d]?.length ?? 0) : null,
             ),
             r.matrixSha256,
+          ],
+          format,
+        ),
+      );
+    }
+    for (const u of run.unmatched ?? []) {
+      await subjects.write(
+        tableLine(
+          [
+            u.id,
+            'excluded',
+            u.reason,
+            null,
+            null,
+            null,
+            ...Array.from({ length: maxDim + 1 }, () => null),
+            null,
           ],
           format,
         ),
