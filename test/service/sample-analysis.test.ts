@@ -153,3 +153,39 @@ print(json.dumps(out))`;
     expect(r.stdout).toMatch(/nodes\.tsv \d+ TRUE/);
   });
 });
+
+describe('loopwise analyze on the malformed companion cohort', () => {
+  it('analyses the good subjects and lists every other one as excluded with its reason', async () => {
+    const messyOut = join(mkdtempSync(join(tmpdir(), 'loopwise-messy-')), 'out');
+    let err = '';
+    const rc = await main(
+      ['analyze', 'sample-data/rhythm-study-messy', '--out', messyOut, '--workers', '1'],
+      {
+        out: () => {},
+        err: (t) => (err += t),
+      },
+    );
+    expect(rc).toBe(0);
+    const [head, ...lines] = readFileSync(join(messyOut, 'subjects.tsv'), 'utf8').trimEnd().split('\n');
+    expect(head.split('\t').slice(0, 3)).toEqual(['participant_id', 'status', 'reason']);
+    const status = Object.fromEntries(lines.map((l) => l.split('\t')).map((c) => [c[0], [c[1], c[2]]]));
+    expect(Object.keys(status).sort()).toEqual([
+      'sub-01',
+      'sub-02',
+      'sub-03',
+      'sub-04',
+      'sub-05',
+      'sub-06',
+      'sub-07',
+      'sub-08',
+    ]);
+    for (const id of ['sub-01', 'sub-02', 'sub-03']) expect(status[id][0]).toBe('analysed');
+    expect(status['sub-04']).toEqual(['excluded', expect.stringMatching(/not symmetric/)]);
+    expect(status['sub-05'][1]).toMatch(/dead region/);
+    expect(status['sub-06'][1]).toMatch(/58 regions/);
+    expect(status['sub-07'][1]).toMatch(/no matrix file/);
+    expect(err).toMatch(/3 analysed/);
+    // The matrix without a participant (sub-09) is a QC finding, not a subject.
+    expect(status['sub-09']).toBeUndefined();
+  }, 120_000);
+});
