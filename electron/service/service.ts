@@ -102,6 +102,8 @@ interface RunState {
   run: RunRecords | null;
   provenance: Provenance | null;
   results: StageOutput;
+  /** Stages (2)–(4) that failed: the run keeps what came before (e.g. features without statistics). */
+  stageFailures: Array<{ subject: string; reason: string }>;
   summary: RunSummary | null;
   done: Promise<RunSummary>;
 }
@@ -214,6 +216,7 @@ export class LoopwiseService implements LoopwiseApi {
       run: null,
       provenance: null,
       results: {},
+      stageFailures: [],
       summary: null,
       done: Promise.resolve(null as unknown as RunSummary),
     };
@@ -375,6 +378,7 @@ export class LoopwiseService implements LoopwiseApi {
       };
       for (const u of state.run.unmatched ?? []) excluded.push({ subject: u.id, reason: u.reason });
       const files = await this.finish(state, req.outDir, format);
+      failures.push(...state.stageFailures);
       return await finishSummary(state.cancelRequested ? 'cancelled' : 'done', files);
     } catch (e) {
       failures.push({ subject: '', reason: e instanceof Error ? e.message : String(e) });
@@ -400,7 +404,15 @@ export class LoopwiseService implements LoopwiseApi {
     for (const stage of ['groupFiltrations', 'features', 'statistics'] as const) {
       const hook = hooks[stage];
       if (!hook || state.cancelRequested) continue;
-      Object.assign(state.results, await hook(ctx));
+      try {
+        Object.assign(state.results, await hook(ctx));
+      } catch (e) {
+        // A stage that cannot run (e.g. a group too small to test) leaves the tables made so far.
+        state.stageFailures.push({
+          subject: `(${stage})`,
+          reason: e instanceof Error ? e.message : String(e),
+        });
+      }
     }
     const grid = (state.results as { grid?: number[] }).grid;
     if (grid && state.provenance) {
@@ -573,6 +585,7 @@ export class LoopwiseService implements LoopwiseApi {
       },
       provenance: null,
       results: {},
+      stageFailures: [],
       summary: null,
       done: Promise.resolve(null as unknown as RunSummary),
     };
@@ -582,9 +595,10 @@ export class LoopwiseService implements LoopwiseApi {
       ? await this.openSource({ dir: first.report.root }).catch(() => null)
       : { report: first.report, load: (entry) => loadSubjectMatrix(entry), loadsInWorker: true };
     const files = await this.finish(state, dir, format);
-    const failures = records
-      .filter((r) => r.status === 'failed')
-      .map((r) => ({ subject: r.id, reason: r.reason ?? '' }));
+    const failures = [
+      ...state.stageFailures,
+      ...records.filter((r) => r.status === 'failed').map((r) => ({ subject: r.id, reason: r.reason ?? '' })),
+    ];
     const excluded = [
       ...records
         .filter((r) => r.status === 'excluded')

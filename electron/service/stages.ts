@@ -27,7 +27,7 @@ import {
 } from '../engine/features/index.ts';
 import type { FeatureRow } from '../engine/features/index.ts';
 import { computePersistence } from '../engine/persistence.ts';
-import { buildDesign, DesignError } from '../engine/stats/design.ts';
+import { buildDesign } from '../engine/stats/design.ts';
 import type { Design } from '../engine/stats/design.ts';
 import { diagramDistanceMatrix, metricName } from '../engine/stats/diagram-distance.ts';
 import type { DiagramMetric } from '../engine/stats/diagram-distance.ts';
@@ -280,18 +280,12 @@ export function cohortStages(): RunHooks {
     async statistics(ctx) {
       const col = ctx.stats.groupColumn;
       if (!col || featureRows.length === 0) return {};
-      let design: Design;
-      try {
-        design = buildDesign(
-          ctx.report.subjects
-            .filter((s) => featureRows.some((f) => f.subject === s.id))
-            .map((s) => ({ id: s.id, covariates: s.covariates })),
-          { groupColumn: col, covariates: ctx.stats.covariates },
-        );
-      } catch (e) {
-        if (e instanceof DesignError) throw new Error(`statistics: ${e.message}`);
-        throw e;
-      }
+      const design: Design = buildDesign(
+        ctx.report.subjects
+          .filter((s) => featureRows.some((f) => f.subject === s.id))
+          .map((s) => ({ id: s.id, covariates: s.covariates })),
+        { groupColumn: col, covariates: ctx.stats.covariates },
+      );
       const subjects = featureRows.map((f) => f.subject);
       const families = buildFamilies(
         subjects,
