@@ -5,6 +5,7 @@
  * The outcome of each subject is placed by its index in the cohort order, so it does not depend
  * on the number of workers or on which finished first.
  */
+import { TASKS_PER_WORKER } from '../workers/pool.ts';
 import { relative, sep } from 'node:path';
 import type { AnalysisSettings, CohortReport, SubjectEntry } from '../api.ts';
 import { FiltrationError } from '../workers/pool.ts';
@@ -137,7 +138,11 @@ export async function runFiltrationStage(opts: FiltrationStageOptions): Promise<
       return;
     }
     opts.onStart?.(entry);
-    base.fileSha256 = await hashFile(entry.source.file);
+    // A file of the subject's own is hashed by the worker that reads it; a file shared by several
+    // subjects (a stack) is hashed once, here.
+    const sharedFile = entry.source.stackIndex !== undefined || entry.source.variable !== undefined;
+    const workerHashes = source.loadsInWorker === true && !sharedFile;
+    if (!workerHashes) base.fileSha256 = await hashFile(entry.source.file);
     const fail = (e: unknown, matrixSha256: string | null = null): void => {
       const reason = e instanceof FiltrationError ? e.message : e instanceof Error ? e.message : String(e);
       finish({ ...base, matrixSha256, reason }, false, false);
@@ -169,8 +174,10 @@ export async function runFiltrationStage(opts: FiltrationStageOptions): Promise<
             settings: filtration,
             cacheDir: cache.dir,
             recompute,
+            hashFile: workerHashes,
           });
           counters.loads++;
+          if (workerHashes) base.fileSha256 = reply.fileSha256 ?? null;
         } catch (e) {
           if (!opts.cancelled()) fail(e);
           return;
@@ -231,7 +238,10 @@ export async function runFiltrationStage(opts: FiltrationStageOptions): Promise<
     await commit(reply.result, key, matrixSha256);
   };
 
-  const window = Math.max(1, opts.window ?? 2 * pool.size);
+  // Subjects in flight: each worker's queue (TASKS_PER_WORKER) plus results being committed here.
+  // When the workers read the files themselves this thread holds no matrix, so the window can be
+  // wider; when this thread loads them, it bounds the matrices held in memory.
+  const window = Math.max(1, opts.window ?? (source.loadsInWorker ? 2 : 1) * TASKS_PER_WORKER * pool.size);
   let next = 0;
   let failure: unknown = null;
   const lane = async (): Promise<void> => {

@@ -7,7 +7,7 @@ import { access } from 'node:fs/promises';
 import { parentPort } from 'node:worker_threads';
 import { loadSubjectMatrix } from '../io/cohort.ts';
 import { cachePath } from '../service/cache.ts';
-import { sha256Matrix } from '../service/hash.ts';
+import { sha256File, sha256Matrix } from '../service/hash.ts';
 import { filtrationKey } from '../service/settings.ts';
 import { runFiltration, transferList } from './filtration.ts';
 import type { FiltrationFailure, WorkerReply, WorkerTask } from './filtration.ts';
@@ -18,6 +18,9 @@ if (!port) throw new Error('filtration-worker.ts must run in a worker thread');
 async function handle(task: WorkerTask): Promise<WorkerReply> {
   if (task.kind === 'matrix')
     return { kind: 'computed', result: runFiltration(task), matrixSha256: null, key: null };
+  const fileHash = task.hashFile
+    ? sha256File(task.entry.source.file).catch(() => null)
+    : Promise.resolve(null);
   const m = await loadSubjectMatrix(task.entry);
   if (task.expectedN !== null && m.n !== task.expectedN)
     throw new Error(
@@ -30,13 +33,14 @@ async function handle(task: WorkerTask): Promise<WorkerReply> {
       () => true,
       () => false,
     );
-    if (present) return { kind: 'cached', taskId: task.taskId, matrixSha256, key, n: m.n };
+    if (present)
+      return { kind: 'cached', taskId: task.taskId, matrixSha256, key, n: m.n, fileSha256: await fileHash };
   }
   const result = runFiltration({ taskId: task.taskId, n: m.n, values: m.values, settings: task.settings });
-  return { kind: 'computed', result, matrixSha256, key };
+  return { kind: 'computed', result, matrixSha256, key, fileSha256: await fileHash };
 }
 
-// The pool sends a worker one task at a time, so handling a message asynchronously is safe.
+// The pool may queue a second task while one is being read or computed; replies carry their task id.
 port.on('message', (task: WorkerTask) => {
   handle(task).then(
     (reply) =>

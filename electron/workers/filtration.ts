@@ -39,13 +39,28 @@ export interface SubjectTask {
   settings: FiltrationSettings;
   cacheDir: string;
   recompute: boolean;
+  /** Also hash the file's bytes (a file of its own; a stack shared by many subjects is hashed once elsewhere). */
+  hashFile: boolean;
 }
 
 export type WorkerTask = ({ kind: 'matrix' } & FiltrationTask) | ({ kind: 'subject' } & SubjectTask);
 
 export type WorkerReply =
-  | { kind: 'computed'; result: PackedFiltration; matrixSha256: string | null; key: string | null }
-  | { kind: 'cached'; taskId: number; matrixSha256: string; key: string; n: number };
+  | {
+      kind: 'computed';
+      result: PackedFiltration;
+      matrixSha256: string | null;
+      key: string | null;
+      fileSha256?: string | null;
+    }
+  | {
+      kind: 'cached';
+      taskId: number;
+      matrixSha256: string;
+      key: string;
+      n: number;
+      fileSha256?: string | null;
+    };
 
 /** Diagrams and representatives as flat typed arrays (transferable). Node indices are those of the matrix as given. */
 export interface PackedFiltration {

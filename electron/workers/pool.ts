@@ -24,9 +24,30 @@ export class FiltrationError extends Error {
   }
 }
 
+interface Pending {
+  resolve: (r: WorkerReply) => void;
+  reject: (e: Error) => void;
+}
+
 interface Slot {
   worker: Worker;
-  busy: { task: number; resolve: (r: WorkerReply) => void; reject: (e: Error) => void } | null;
+  /** Tasks posted to this worker and not yet answered, by task id. */
+  pending: Map<number, Pending>;
+}
+
+/**
+ * Tasks queued per worker. With two, the next subject is already waiting in the worker's message
+ * port when it finishes one, so it never idles while this thread commits the last result; the
+ * worker also reads one file while it computes another. Replies carry their task id, so their
+ * order does not matter.
+ */
+export const TASKS_PER_WORKER = 2;
+
+function replyTaskId(
+  m: { ok: true; reply: WorkerReply } | { ok: false; failure: FiltrationFailure },
+): number {
+  if (!m.ok) return m.failure.taskId;
+  return m.reply.kind === 'computed' ? m.reply.result.taskId : m.reply.taskId;
 }
 
 export function defaultPoolSize(): number {
@@ -52,27 +73,28 @@ export class WorkerPool {
   }
 
   private spawn(): Slot {
-    const slot: Slot = { worker: new Worker(this.entry), busy: null };
+    const slot: Slot = { worker: new Worker(this.entry), pending: new Map() };
     slot.worker.on(
       'message',
       (m: { ok: true; reply: WorkerReply } | { ok: false; failure: FiltrationFailure }) => {
-        const busy = slot.busy;
-        if (!busy) return;
-        slot.busy = null;
+        const id = replyTaskId(m);
+        const p = slot.pending.get(id);
+        if (!p) return;
+        slot.pending.delete(id);
         this.completed++;
-        if (m.ok) busy.resolve(m.reply);
-        else busy.reject(new FiltrationError(m.failure.error));
+        if (m.ok) p.resolve(m.reply);
+        else p.reject(new FiltrationError(m.failure.error));
         this.release();
       },
     );
     const die = (reason: string): void => {
-      const busy = slot.busy;
-      slot.busy = null;
+      const lost = [...slot.pending.values()];
+      slot.pending.clear();
       if (this.closed) return;
       const i = this.slots.indexOf(slot);
       if (i >= 0) this.slots[i] = this.spawn();
-      if (busy) busy.reject(new FiltrationError(`worker thread died: ${reason}`));
-      this.release();
+      for (const p of lost) p.reject(new FiltrationError(`worker thread died: ${reason}`));
+      for (let k = 0; k < Math.max(1, lost.length); k++) this.release();
     };
     slot.worker.on('error', (e) => die(e.message));
     slot.worker.on('exit', (code) => die(`exit code ${code}`));
@@ -88,22 +110,26 @@ export class WorkerPool {
   async run(task: WorkerTask): Promise<WorkerReply> {
     for (;;) {
       if (this.closed) throw new FiltrationError('worker pool is closed');
-      const slot = this.slots.find((s) => s.busy === null);
+      // The least loaded worker with room in its queue.
+      let slot: Slot | null = null;
+      for (const s of this.slots) {
+        if (s.pending.size < TASKS_PER_WORKER && (!slot || s.pending.size < slot.pending.size)) slot = s;
+      }
       if (slot) {
         let transfer: ArrayBuffer[] = [];
         let message: WorkerTask = task;
         if (task.kind === 'matrix') {
           let values = task.values;
-          // Only a buffer the array owns whole can be transferred without detaching someone else's data.
           if (values.byteOffset !== 0 || values.byteLength !== values.buffer.byteLength)
             values = values.slice();
           message = { ...task, values };
           transfer = [values.buffer as ArrayBuffer];
         }
+        const target = slot;
         return new Promise<WorkerReply>((resolve, reject) => {
-          slot.busy = { task: task.taskId, resolve, reject };
-          this.peakBusy = Math.max(this.peakBusy, this.slots.filter((s) => s.busy !== null).length);
-          slot.worker.postMessage(message, transfer);
+          target.pending.set(task.taskId, { resolve, reject });
+          this.peakBusy = Math.max(this.peakBusy, this.slots.filter((s) => s.pending.size > 0).length);
+          target.worker.postMessage(message, transfer);
         });
       }
       await new Promise<void>((resolve) => this.waiting.push(resolve));
@@ -121,8 +147,8 @@ export class WorkerPool {
     const slots = this.slots;
     this.slots = [];
     for (const s of slots) {
-      if (s.busy) s.busy.reject(new FiltrationError('cancelled'));
-      s.busy = null;
+      for (const p of s.pending.values()) p.reject(new FiltrationError('cancelled'));
+      s.pending.clear();
     }
     await Promise.all(slots.map((s) => s.worker.terminate()));
     for (const w of this.waiting.splice(0)) w();

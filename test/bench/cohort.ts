@@ -17,6 +17,7 @@
 import { mkdtempSync, rmSync } from 'node:fs';
 import { availableParallelism, tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { Worker } from 'node:worker_threads';
 import type { RunSummary } from '../../electron/api.ts';
 import { createLoopwiseService } from '../../electron/service/service.ts';
 import type { LoopwiseService } from '../../electron/service/service.ts';
@@ -57,16 +58,49 @@ async function analyse(
 
 const mib = (b: number): string => `${(b / 1024 ** 2).toFixed(0)} MiB`;
 
+/**
+ * What this machine gives two threads: the same fixed arithmetic on 1 and on 2 threads at once,
+ * as the throughput ratio. On shared virtual CPUs it can be far below 2; the cohort's speed-up is
+ * to be read against it.
+ */
+async function threadCeiling(): Promise<number> {
+  const code = `const { parentPort } = require('node:worker_threads');
+    const a = new Float64Array(1 << 16); let s = 0;
+    for (let r = 0; r < 3000; r++) for (let i = 0; i < a.length; i++) { a[i] = a[i] * 0.5 + i; s += a[i]; }
+    parentPort.postMessage(s);`;
+  const run = async (k: number): Promise<number> => {
+    const t0 = performance.now();
+    await Promise.all(
+      Array.from(
+        { length: k },
+        () =>
+          new Promise<void>((resolve) => {
+            const w = new Worker(code, { eval: true });
+            w.on('message', () => void w.terminate().then(() => resolve()));
+          }),
+      ),
+    );
+    return performance.now() - t0;
+  };
+  await run(1);
+  const one = Math.min(await run(1), await run(1));
+  const two = Math.min(await run(2), await run(2));
+  return (2 * one) / two;
+}
+
 try {
   console.log(`cores: ${availableParallelism()}; settings: correlation, 1 − r, H0 + H1 with representatives`);
+  console.log(
+    `this machine's two-thread ceiling (pure arithmetic, 2 threads / 1): ${(await threadCeiling()).toFixed(2)}×`,
+  );
   const sizes = quick
     ? [
         { n: 200, subjects: 6 },
         { n: 400, subjects: 4 },
       ]
     : [
-        { n: 200, subjects: 24 },
-        { n: 400, subjects: 8 },
+        { n: 200, subjects: 100 },
+        { n: 400, subjects: 30 },
       ];
   console.log('\n   N  subjects  workers  seconds  cores  subjects/s  speed-up');
   for (const { n, subjects } of sizes) {
