@@ -79,11 +79,17 @@ export function cohortStages(): RunHooks {
   let gridValues: Float64Array = new Float64Array(0);
   let diagramsBySubject: Array<Array<Array<[number, number | null]>>> = [];
 
+  let entries: Map<string, SubjectEntry> | null = null;
+  const entryOf = (ctx: StageContext, id: string): SubjectEntry | undefined => {
+    if (!entries || entries.size !== ctx.report.subjects.length) {
+      entries = new Map(ctx.report.subjects.map((s) => [s.id, s]));
+    }
+    return entries.get(id);
+  };
   const groupOf = (ctx: StageContext, id: string): string | null => {
     const col = ctx.stats.groupColumn;
     if (!col) return null;
-    const entry = ctx.report.subjects.find((s) => s.id === id);
-    const v = entry?.covariates[col];
+    const v = entryOf(ctx, id)?.covariates[col];
     return v === null || v === undefined ? null : String(v);
   };
 
@@ -95,7 +101,7 @@ export function cohortStages(): RunHooks {
       const groups = new Map<string, SubjectEntry[]>();
       for (const rec of ctx.analysed) {
         const g = groupOf(ctx, rec.id);
-        const entry = ctx.report.subjects.find((s) => s.id === rec.id);
+        const entry = entryOf(ctx, rec.id);
         if (g === null || !entry) continue;
         if (!groups.has(g)) groups.set(g, []);
         groups.get(g)!.push(entry);
@@ -206,7 +212,7 @@ export function cohortStages(): RunHooks {
           const cached = await ctx.filtration(rec);
           const r = resultFromCache(cached, nRead);
           diagramsBySubject.push(cached.diagrams);
-          const entry = ctx.report.subjects.find((s) => s.id === rec.id);
+          const entry = entryOf(ctx, rec.id);
           const distances = entry ? await subjectDistances(ctx, entry) : null;
           featureRows.push({
             subject: rec.id,
@@ -281,9 +287,10 @@ export function cohortStages(): RunHooks {
       const col = ctx.stats.groupColumn;
       if (!col || featureRows.length === 0) return {};
       const design: Design = buildDesign(
-        ctx.report.subjects
-          .filter((s) => featureRows.some((f) => f.subject === s.id))
-          .map((s) => ({ id: s.id, covariates: s.covariates })),
+        featureRows.flatMap((f) => {
+          const s = entryOf(ctx, f.subject);
+          return s ? [{ id: s.id, covariates: s.covariates }] : [];
+        }),
         { groupColumn: col, covariates: ctx.stats.covariates },
       );
       const subjects = featureRows.map((f) => f.subject);
