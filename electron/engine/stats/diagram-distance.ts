@@ -184,6 +184,66 @@ export function diagramDistance(a: DiagramPoint[], b: DiagramPoint[], metric: Di
   }
 }
 
+/**
+ * All pairwise sliced Wasserstein distances at once, equal to slicedWasserstein() pair by pair to
+ * the last bit. Why it is faster: a point's projection, and its diagonal projection's, depend only
+ * on the point and the direction, so each diagram's two sorted projection lists are made once per
+ * direction; a pair then needs only two merges in lockstep (O(n)), not two sorts (O(n log n)).
+ * Directions run in the outer loop, so memory holds one direction's lists at a time.
+ */
+export function slicedWassersteinMatrix(
+  diagrams: DiagramPoint[][],
+  directions = DEFAULT_SLICED_DIRECTIONS,
+): SquareMatrix {
+  const n = diagrams.length;
+  const total = new Float64Array(n * n);
+  const points: Float64Array[] = diagrams.map((d) => new Float64Array(d.length));
+  const diagonal: Float64Array[] = diagrams.map((d) => new Float64Array(d.length));
+  for (let k = 0; k < directions; k++) {
+    const theta = -Math.PI / 2 + (k * Math.PI) / directions;
+    const c = Math.cos(theta);
+    const s = Math.sin(theta);
+    diagrams.forEach((d, i) => {
+      d.forEach(([x, y], t) => {
+        points[i][t] = x * c + y * s;
+        diagonal[i][t] = ((x + y) / 2) * (c + s);
+      });
+      points[i].sort();
+      diagonal[i].sort();
+    });
+    for (let i = 0; i < n; i++) {
+      for (let j = 0; j < i; j++) {
+        // sorted(points_i ∪ diagonal_j) against sorted(points_j ∪ diagonal_i), merged as we go.
+        const A = points[i];
+        const B = diagonal[j];
+        const C = points[j];
+        const D = diagonal[i];
+        const m = A.length + B.length;
+        let a = 0;
+        let b = 0;
+        let c2 = 0;
+        let d2 = 0;
+        let acc = total[i * n + j];
+        for (let t = 0; t < m; t++) {
+          const x = b >= B.length || (a < A.length && A[a] <= B[b]) ? A[a++] : B[b++];
+          const y = d2 >= D.length || (c2 < C.length && C[c2] <= D[d2]) ? C[c2++] : D[d2++];
+          acc += Math.abs(x - y);
+        }
+        total[i * n + j] = acc;
+      }
+    }
+  }
+  const values = new Float64Array(n * n);
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < i; j++) {
+      const v = total[i * n + j] / directions;
+      values[i * n + j] = v;
+      values[j * n + i] = v;
+    }
+  }
+  return { n, values };
+}
+
 /** The subject × subject matrix of diagram distances (row-major, symmetric, zero diagonal). */
 export function diagramDistanceMatrix(
   diagrams: DiagramInput[],
@@ -197,6 +257,7 @@ export function diagramDistanceMatrix(
       throw new Error(`diagram ${i}: ${(e as Error).message}`);
     }
   });
+  if (metric.kind === 'sliced-wasserstein') return slicedWassersteinMatrix(finite, metric.directions);
   const n = finite.length;
   const values = new Float64Array(n * n);
   for (let i = 0; i < n; i++) {
