@@ -108,6 +108,23 @@ interface RunState {
   done: Promise<RunSummary>;
 }
 
+/** A run's state as it starts: running, nothing computed yet. */
+function newRunState(
+  fields: Pick<RunState, 'runId' | 'request' | 'source' | 'report' | 'cache' | 'run'>,
+): RunState {
+  return {
+    ...fields,
+    status: 'running',
+    cancelRequested: false,
+    pool: null,
+    provenance: null,
+    results: {},
+    stageFailures: [],
+    summary: null,
+    done: Promise.resolve(null as unknown as RunSummary),
+  };
+}
+
 /** The subjects of share `index` of `count` (1-based): positions ≡ index − 1 (mod count). */
 export function shareOf(total: number, shard: { index: number; count: number } | null | undefined): number[] {
   const all = Array.from({ length: total }, (_, i) => i);
@@ -204,22 +221,14 @@ export class LoopwiseService implements LoopwiseApi {
     const cache = new FiltrationCache(cacheDir);
     await cache.init();
     const runId = `run-${this.nextRun++}`;
-    const state: RunState = {
+    const state = newRunState({
       runId,
       request: { ...req, outDir },
-      status: 'running',
-      cancelRequested: false,
-      pool: null,
       source,
       report: source.report,
       cache,
       run: null,
-      provenance: null,
-      results: {},
-      stageFailures: [],
-      summary: null,
-      done: Promise.resolve(null as unknown as RunSummary),
-    };
+    });
     this.runs.set(runId, state);
     state.done = this.execute(state, format);
     return { runId };
@@ -562,7 +571,7 @@ export class LoopwiseService implements LoopwiseApi {
     await prepareOutDir(dir, opts.force ?? false, Object.values(tableNames(format)));
     const cache = new FiltrationCache(resolve(opts.cacheDir ?? first.cacheDir));
     const runId = `run-${this.nextRun++}`;
-    const state: RunState = {
+    const state = newRunState({
       runId,
       request: {
         cohort: { dir: first.report.root },
@@ -570,9 +579,6 @@ export class LoopwiseService implements LoopwiseApi {
         stats,
         outDir: dir,
       },
-      status: 'running',
-      cancelRequested: false,
-      pool: null,
       source: null,
       report: first.report,
       cache,
@@ -583,12 +589,7 @@ export class LoopwiseService implements LoopwiseApi {
         records,
         unmatched: unmatchedParticipants(first.report),
       },
-      provenance: null,
-      results: {},
-      stageFailures: [],
-      summary: null,
-      done: Promise.resolve(null as unknown as RunSummary),
-    };
+    });
     this.runs.set(runId, state);
     // From the recorded report, without checking the cohort again; matrices are read only if a stage asks.
     state.source = this.options.openSource
