@@ -37,7 +37,12 @@ export interface MatrixSource {
 }
 
 export interface SubjectEntry {
+  /** The scan's unique key: the participant id, or `${participant}_ses-${session}` where the cohort has sessions. */
   id: string;
+  /** The participant (BIDS participant_id) the scan belongs to. */
+  participant: string;
+  /** The BIDS session label (after `ses-`), or null in a cohort without sessions. */
+  session: string | null;
   source: MatrixSource;
   /** The participants table row, column → value (numbers parsed; 'n/a' and empty → null). */
   covariates: Record<string, CovariateValue>;
@@ -71,6 +76,8 @@ export interface CohortReport {
   findings: QcFinding[];
   /** Regions that are NaN (dead) in some subject: region index → subject ids. */
   deadRegions: Array<{ index: number; label: string; subjects: string[] }>;
+  /** Session labels in natural order, or null when no file names a BIDS `ses-` entity. */
+  sessions: string[] | null;
 }
 
 // ---------- Analysis settings ----------
@@ -92,7 +99,18 @@ export interface AnalysisSettings {
 }
 
 export interface StatsSettings {
+  /** Shorthand: the same as `effect` with the column taken as categorical. */
   groupColumn: string | null;
+  /** The effect of interest: categorical (2 levels: t contrast; more: F) or numeric (slope t). */
+  effect: string | null;
+  /** A model formula in Wilkinson–Rogers notation ('+', ':', '*'), e.g. "group*session + age". */
+  model: string | null;
+  /** With `model`: the term tested, e.g. "group:session". */
+  test: string | null;
+  /** Reference level of a categorical effect (its contrast is other − reference). */
+  reference: string | null;
+  /** Exchangeability blocks (e.g. participant_id): permutations respect them. */
+  blocks: string | null;
   covariates: string[];
   permutations: number;
   seed: number;

@@ -181,11 +181,21 @@ export function checkSettings(v: unknown): AnalysisSettings {
   };
 }
 
+/** An optional string setting: absent or null → null. */
+function nullableStr(v: unknown, name: string): string | null {
+  return v === undefined || v === null ? null : str(v, name, 1024);
+}
+
 export function checkStats(v: unknown): StatsSettings {
   if (!isObj(v)) throw new BadRequest('stats must be an object');
   if (!Array.isArray(v.covariates)) throw new BadRequest('stats.covariates must be an array');
   return {
     groupColumn: v.groupColumn === null ? null : str(v.groupColumn, 'stats.groupColumn', 256),
+    effect: nullableStr(v.effect, 'stats.effect'),
+    model: nullableStr(v.model, 'stats.model'),
+    test: nullableStr(v.test, 'stats.test'),
+    reference: nullableStr(v.reference, 'stats.reference'),
+    blocks: nullableStr(v.blocks, 'stats.blocks'),
     covariates: v.covariates.map((c, i) => str(c, `stats.covariates[${i}]`, 256)),
     permutations: num(v.permutations, 'stats.permutations', 0, 1_000_000, true),
     seed: num(v.seed, 'stats.seed', 0, 2 ** 32 - 1, true),

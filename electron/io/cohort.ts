@@ -283,7 +283,10 @@ export async function openCohort(
     source: MatrixSource,
     covariates: Record<string, CovariateValue>,
   ): Pending => {
-    const p: Pending = { entry: { id, source, covariates, usable: true }, preErrors: false };
+    const p: Pending = {
+      entry: { id, participant: id, session: null, source, covariates, usable: true },
+      preErrors: false,
+    };
     pending.push(p);
     return p;
   };
@@ -637,6 +640,7 @@ export async function openCohort(
     root,
     n,
     subjects,
+    sessions: null,
     columns,
     nodes,
     findings: [...findings, ...perSubject.flat()],

@@ -22,7 +22,17 @@ export function defaultAnalysisSettings(): AnalysisSettings {
 }
 
 export function defaultStatsSettings(): StatsSettings {
-  return { groupColumn: null, covariates: [], permutations: 5000, seed: 1 };
+  return {
+    groupColumn: null,
+    effect: null,
+    model: null,
+    test: null,
+    reference: null,
+    blocks: null,
+    covariates: [],
+    permutations: 5000,
+    seed: 1,
+  };
 }
 
 /** Throws an Error naming the first setting that cannot be used. */

@@ -132,7 +132,13 @@ describe('cohort runs', () => {
     const first = await run(join(root, 'c1'), { cacheDir, workers: 2 });
     expect(first.counters.filtrations).toBe(9);
 
-    const stats = { groupColumn: 'group', covariates: ['age'], permutations: 99, seed: 7 };
+    const stats = {
+      ...defaultStatsSettings(),
+      groupColumn: 'group',
+      covariates: ['age'],
+      permutations: 99,
+      seed: 7,
+    };
     const settings = { ...defaultAnalysisSettings(), persistenceFloor: 0.05, gridPoints: 50 };
     const second = await run(join(root, 'c2'), { cacheDir, workers: 2, stats, settings });
     expect(second.counters.filtrations).toBe(0);
@@ -180,6 +186,8 @@ function memorySource(subjects: number, n: number): CohortSource {
       n,
       subjects: Array.from({ length: subjects }, (_, i) => ({
         id: `m${i}`,
+        participant: `m${i}`,
+        session: null,
         source: { file: `/in-memory/m${i}.csv` },
         covariates: {},
         usable: i !== 2,
@@ -196,6 +204,7 @@ function memorySource(subjects: number, n: number): CohortSource {
         },
       ],
       deadRegions: [],
+      sessions: null,
     },
     load: async (entry) => {
       if (entry.id === 'm3') throw new Error('m3.csv: permission denied');

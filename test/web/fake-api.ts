@@ -70,6 +70,8 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
     n: N,
     subjects: ids.map((id, i) => ({
       id,
+      participant: id,
+      session: null,
       source: { file: `${root}/${id}.tsv` },
       covariates: { group: groupOf(i), age: 20 + i * 3, sex: i % 3 === 0 ? 'F' : 'M' },
       usable: id !== 'sub-10',
@@ -105,6 +107,7 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
       },
     ],
     deadRegions: [],
+    sessions: null,
   });
 
   const subject = (id: string): SubjectResult | null => {
@@ -224,7 +227,17 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
       landscapeLevels: 3,
       dropRegions: [],
     },
-    stats: { groupColumn: 'group', covariates: [], permutations: 1000, seed: 1 },
+    stats: {
+      groupColumn: 'group',
+      effect: null,
+      model: null,
+      test: null,
+      reference: null,
+      blocks: null,
+      covariates: [],
+      permutations: 1000,
+      seed: 1,
+    },
   };
 
   const emit = (e: ProgressEvent) => {
