@@ -35,5 +35,8 @@ export async function openCohortSource(
     ...(opts.input !== undefined ? { input: opts.input } : {}),
     ...(opts.dropRegions !== undefined ? { dropRegions: opts.dropRegions } : {}),
   });
+  // The correlation estimator travels with each subject's source, so workers (and merges) load alike.
+  if (req.timeSeries && req.correlation === 'ledoit-wolf')
+    for (const s of report.subjects) s.source = { ...s.source, correlation: 'ledoit-wolf' };
   return { report, load: (entry) => loadSubjectMatrix(entry), loadsInWorker: true };
 }

@@ -29,6 +29,12 @@ import { WorkerPool, defaultPoolSize } from '../workers/pool.ts';
 import { openAtomicWriter, removeStaleTemps, writeFileAtomic } from './atomic.ts';
 import { FiltrationCache } from './cache.ts';
 import { loadSubjectMatrix } from '../io/cohort.ts';
+import {
+  assertNoProblems,
+  validateCohortRequest,
+  validateStatsColumns,
+  validateStatsSettings,
+} from '../contract.ts';
 import { openCohortSource } from './cohort-source.ts';
 import type { CohortSource, SourceOptions } from './cohort-source.ts';
 import type { RunHooks, StageContext, StageOutput } from './hooks.ts';
@@ -199,6 +205,7 @@ export class LoopwiseService implements LoopwiseApi {
    */
   async startRun(req: StartRunRequest): Promise<{ runId: string }> {
     checkSettings(req.settings);
+    assertNoProblems([...validateCohortRequest(req.cohort), ...validateStatsSettings(req.stats)]);
     if (req.shard) {
       const { index, count } = req.shard;
       if (!(Number.isInteger(count) && count >= 1 && Number.isInteger(index) && index >= 1 && index <= count))
@@ -215,6 +222,8 @@ export class LoopwiseService implements LoopwiseApi {
       input: req.settings.input,
       dropRegions: req.settings.dropRegions,
     });
+    // Columns the statistics name must exist: refused now, before any filtration runs.
+    assertNoProblems(validateStatsColumns(req.stats, source.report.columns));
     const cacheDir = resolve(
       req.cacheDir ?? (outDir ? join(outDir, CACHE_DIR_NAME) : (this.options.cacheDir ?? CACHE_DIR_NAME)),
     );
@@ -426,7 +435,11 @@ export class LoopwiseService implements LoopwiseApi {
     const grid = (state.results as { grid?: number[] }).grid;
     if (grid && state.provenance) {
       // The grid is known only once the features stage has seen the cohort: record it too.
-      state.provenance = { ...state.provenance, grid };
+      state.provenance = {
+        ...state.provenance,
+        grid,
+        gridSource: state.run?.settings.gridRange ? 'fixed' : 'cohort',
+      };
       if (outDir) await ctx.writeJson(tableNames(format).provenance, state.provenance);
     }
     if (outDir && !state.cancelRequested) await markOutDirComplete(outDir, files);
@@ -568,6 +581,8 @@ export class LoopwiseService implements LoopwiseApi {
     const format = opts.tableFormat ?? 'tsv';
     // Statistics run after the merge, so they may be chosen now; the shards' own are the default.
     const stats: StatsSettings = { ...first.stats, ...opts.stats };
+    assertNoProblems(validateStatsSettings(stats));
+    assertNoProblems(validateStatsColumns(stats, first.report.columns));
     await prepareOutDir(dir, opts.force ?? false, Object.values(tableNames(format)));
     const cache = new FiltrationCache(resolve(opts.cacheDir ?? first.cacheDir));
     const runId = `run-${this.nextRun++}`;

@@ -352,7 +352,7 @@ describe('Subject', () => {
 });
 
 describe('Exports', () => {
-  it('writes TSV that a CSV/TSV parser (papaparse) reads back, missing values as n/a', () => {
+  it('writes TSV that a CSV/TSV parser (papaparse) reads back, missing values as NA', () => {
     const t: Table = {
       columns: ['id', 'x', 'note'],
       rows: [
@@ -365,7 +365,7 @@ describe('Exports', () => {
     expect(parsed).toEqual([
       ['id', 'x', 'note'],
       ['a', '1.5', 'tab here'],
-      ['b', 'n/a', 'ok'],
+      ['b', 'NA', 'ok'],
     ]);
     const csv = Papa.parse<string[]>(tableText({ columns: ['a'], rows: [['x, "y"']] }, 'csv').trimEnd()).data;
     expect(csv).toEqual([['a'], ['x, "y"']]);
