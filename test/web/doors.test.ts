@@ -22,6 +22,8 @@ import {
 import { BadRequest, checkCall } from '../../electron/web-client.ts';
 import { startWebServer, type WebServer } from '../../electron/web.ts';
 import { settingsProblems } from '../../renderer/src/lib/settings.ts';
+import { createLoopwiseService } from '../../electron/service/service.ts';
+import { writeCohort } from '../service/support.ts';
 import { createFakeApi, type FakeApi } from './fake-api.ts';
 
 const BIN = new URL('../../bin/loopwise.js', import.meta.url).pathname;
@@ -315,5 +317,50 @@ describe('the new options reach the service through every door', () => {
     const res = await post('startRun', [req]);
     expect(res.status).toBe(200);
     expect(api.calls.at(-1)).toEqual({ method: 'startRun', args: [req] });
+  });
+});
+
+describe('columns the cohort lacks, through the browser API over the real service', () => {
+  it('startRun answers 400 naming the column and the available ones; nothing is computed', async () => {
+    const real = join(dir, 'real');
+    writeCohort(real, { subjects: 4, n: 10, seed: 2 });
+    const service = createLoopwiseService({ workers: 1 });
+    const web = await startWebServer(service, { port: 0, roots: [dir] });
+    try {
+      const call = (req: unknown) =>
+        fetch(`http://127.0.0.1:${web.port}/api/startRun`, {
+          method: 'POST',
+          headers: { 'content-type': 'application/json', 'x-loopwise-token': web.token },
+          body: JSON.stringify([req]),
+        });
+      const base = {
+        cohort: { dir: real },
+        settings: defaultAnalysisSettings(),
+        outDir: null,
+      };
+      const res = await call({
+        ...base,
+        stats: { ...defaultStatsSettings(), groupColumn: 'diagnosis', covariates: ['agee'] },
+      });
+      expect(res.status).toBe(400);
+      const body = (await res.json()) as {
+        problems: Array<{ field: string; option: string; message: string }>;
+      };
+      expect(body.problems.map((p) => [p.field, p.option])).toEqual([
+        ['stats.groupColumn', '--group'],
+        ['stats.covariates', '--covariates'],
+      ]);
+      expect(body.problems[0].message).toMatch(/no column 'diagnosis' .*available: .*group, age/);
+      const ok = await call({
+        ...base,
+        stats: { ...defaultStatsSettings(), groupColumn: 'group', permutations: 9 },
+      });
+      expect(ok.status).toBe(200);
+      const { runId } = (await ok.json()) as { runId: string };
+      expect(runId).toBe('run-1');
+    } finally {
+      await web.close();
+      await service.close();
+    }
   });
 });
