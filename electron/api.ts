@@ -181,6 +181,8 @@ export interface Provenance {
    * comparable only within this run.
    */
   gridSource?: 'fixed' | 'cohort';
+  /** Present when the matrices were correlated from region time series: the estimator used. */
+  correlation?: 'pearson' | 'ledoit-wolf';
   /** Each subject's input file (relative to cohortRoot) with the SHA-256 of the file's bytes. */
   inputFiles?: Array<{
     subject: string;

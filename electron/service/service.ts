@@ -435,10 +435,13 @@ export class LoopwiseService implements LoopwiseApi {
     const grid = (state.results as { grid?: number[] }).grid;
     if (grid && state.provenance) {
       // The grid is known only once the features stage has seen the cohort: record it too.
+      const series = state.report.subjects.find((x) => x.source.timeSeries);
       state.provenance = {
         ...state.provenance,
         grid,
         gridSource: state.run?.settings.gridRange ? 'fixed' : 'cohort',
+        // From the subjects' sources, so a merge of shards records it too.
+        ...(series ? { correlation: series.source.correlation ?? 'pearson' } : {}),
       };
       if (outDir) await ctx.writeJson(tableNames(format).provenance, state.provenance);
     }

@@ -220,6 +220,8 @@ describe('time series and the correlation estimator', () => {
       const out = join(root, `ts-out-${estimator.join('')}`);
       const r = loopwise(['analyze', ts, '--out', out, '--time-series', ...estimator, '--workers', '1']);
       expect(r.code, r.err).toBe(0);
+      const prov = JSON.parse(readFileSync(join(out, 'provenance.json'), 'utf8'));
+      expect(prov.correlation).toBe(estimator.length ? estimator[1] : 'pearson');
       return readTsv(join(out, 'intervals.tsv'))
         .filter((x) => x.dimension === '0' && x.death !== 'inf')
         .map((x) => Number(x.death))
