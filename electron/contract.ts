@@ -34,9 +34,21 @@ export const TRANSFORM_LABELS: Record<TransformName, string> = {
   'neg-log': '−log(w / max w)',
   identity: 'as given',
 };
+/** How each input kind is written for people. */
+export const INPUT_LABELS: Record<InputKind, string> = {
+  correlation: 'correlation',
+  weight: 'weight (larger = stronger)',
+  distance: 'distance',
+};
 export const CAP_KINDS = ['none', 'distance', 'density'] as const;
 export type CapKind = (typeof CAP_KINDS)[number];
+export const CAP_LABELS: Record<CapKind, string> = {
+  none: 'none (full filtration)',
+  distance: 'at a distance',
+  density: 'at an edge density',
+};
 export const MAX_DIMS = [1, 2] as const;
+export const MAX_DIM_LABELS: Record<(typeof MAX_DIMS)[number], string> = { 1: 'H0, H1', 2: 'H0, H1, H2' };
 /** How region time series become a correlation matrix (engine/correlation.ts). */
 export const CORRELATION_ESTIMATORS = ['pearson', 'ledoit-wolf'] as const;
 export type CorrelationEstimator = (typeof CORRELATION_ESTIMATORS)[number];
@@ -448,6 +460,11 @@ export function validateStatsSettings(v: unknown): Problem[] {
   if (typeof v.model === 'string' && v.model.trim() !== '') {
     if (/[^\w.\-+:*()\s]/.test(v.model) || formulaColumns(v.model).length === 0)
       c.add('stats.model', `is not a formula of columns joined by +, : and *: ${show(v.model)}`);
+    else if (/[\w.]\s*\(/.test(v.model))
+      c.add(
+        'stats.model',
+        `takes columns joined by +, : and * (and parentheses), not functions: ${show(v.model)}`,
+      );
     else if (formulaColumns(v.model).some((t) => /\s/.test(t)))
       c.add('stats.model', `needs +, : or * between column names: ${show(v.model)}`);
   }
