@@ -9,6 +9,7 @@ export default tseslint.config(
       'node_modules/**',
       'dist/**',
       'dist-electron/**',
+      'dist-node/**',
       'release/**',
       'renderer/**/*.svelte',
       'test/reference/**/*.py',
