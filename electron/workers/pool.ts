@@ -16,8 +16,9 @@ import type { FiltrationFailure, WorkerReply, WorkerTask } from './filtration.ts
 
 /**
  * The worker's entry. Run as TypeScript source (tsx, vitest), the worker sits behind a tiny .js
- * bootstrap that registers tsx (see bootstrap.js for why). Compiled (`npm run build:node`), this
- * module is part of a bundle in dist-node/, and the compiled worker sits beside it.
+ * bootstrap that registers tsx (see bootstrap.js for why). Compiled, this module is part of a
+ * bundle (dist-node/ by `npm run build:node`, dist-electron/ by `npm run build`) and the compiled
+ * worker sits beside it.
  */
 export const DEFAULT_WORKER_ENTRY = new URL(
   import.meta.url.endsWith('.ts') ? './bootstrap.js' : './filtration-worker.js',
