@@ -13,11 +13,11 @@
 // `npm run typecheck`).
 //
 // The build ends by writing dist-node/build-stamp.json: every file under electron/ plus
-// package.json and this script, each with its size and modification time, as they were when the
+// package.json, package-lock.json and this script, each with its size and modification time, as they were when the
 // build started. bin/loopwise.js runs the compiled code only while that list still matches the
 // files on disk, and otherwise runs the sources through tsx: an edited, added, removed or
 // checked-out file is never served from a stale build.
-import { readFileSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { existsSync, readFileSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { join, relative, resolve, sep } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 
@@ -26,7 +26,10 @@ export const STAMP_FILE = 'build-stamp.json';
 
 /** The files a build depends on, as `[path relative to root, size, mtimeMs]`, sorted by path. */
 export function sourceStamp(root = REPO) {
-  const files = ['package.json', join('bin', 'build-node.js')];
+  // package-lock.json stands for the bundled npm packages' versions.
+  const files = ['package.json', 'package-lock.json', join('bin', 'build-node.js')].filter((f) =>
+    existsSync(join(root, f)),
+  );
   // A plain walk: readdirSync's `recursive` option costs several times more on Node 20.
   const walk = (dir) => {
     for (const e of readdirSync(join(root, dir), { withFileTypes: true })) {
@@ -64,7 +67,7 @@ export async function buildNode(root = REPO, outDir = join(root, 'dist-node')) {
   const stamp = sourceStamp(root);
   rmSync(outDir, { recursive: true, force: true });
   const { build } = await import('esbuild');
-  await build({
+  const result = await build({
     absWorkingDir: root,
     entryPoints: {
       cli: 'electron/cli.ts',
@@ -78,11 +81,19 @@ export async function buildNode(root = REPO, outDir = join(root, 'dist-node')) {
     target: 'node20',
     sourcemap: true,
     logLevel: 'warning',
+    metafile: true,
     // Bundled CommonJS dependencies (papaparse) require node built-ins; ES modules have no `require`.
     banner: {
       js: "import { createRequire as __loopwiseRequire } from 'node:module'; const require = __loopwiseRequire(import.meta.url);",
     },
   });
+  // The stamp must cover every source the bundle holds, or an edit to one would go unnoticed.
+  const stamped = new Set(stamp.map(([path]) => path));
+  const unstamped = Object.keys(result.metafile.inputs).filter(
+    (f) => !f.split('/').includes('node_modules') && !stamped.has(f),
+  );
+  if (unstamped.length > 0)
+    throw new Error(`the build reads files its stamp does not cover: ${unstamped.join(', ')}`);
   // The output is ES modules wherever it is written, also outside this package.
   writeFileSync(join(outDir, 'package.json'), '{ "type": "module" }\n');
   writeFileSync(join(outDir, STAMP_FILE), JSON.stringify(stamp));
