@@ -456,8 +456,13 @@ export function validateStatsSettings(v: unknown): Problem[] {
   }
   for (const f of ['groupColumn', 'effect', 'test', 'reference', 'blocks'] as const)
     c.optName(`stats.${f}`, v[f]);
-  c.optName('stats.model', v.model, LIMITS.formula);
-  if (typeof v.model === 'string' && v.model.trim() !== '') {
+  if (v.model !== null && v.model !== undefined) {
+    if (typeof v.model !== 'string' || v.model.length > LIMITS.formula)
+      c.add('stats.model', `must be a formula of at most ${LIMITS.formula} characters, got ${show(v.model)}`);
+    else if (v.model.trim() === '')
+      c.add('stats.model', "is empty: give a formula such as 'group*session + age'");
+  }
+  if (typeof v.model === 'string' && v.model.trim() !== '' && v.model.length <= LIMITS.formula) {
     if (/[^\w.\-+:*()\s]/.test(v.model) || formulaColumns(v.model).length === 0)
       c.add('stats.model', `is not a formula of columns joined by +, : and *: ${show(v.model)}`);
     else if (/[\w.]\s*\(/.test(v.model))

@@ -49,6 +49,9 @@ describe('the options contract', () => {
       "stats.model: takes columns joined by +, : and * (and parentheses), not functions: 'group + log(age)'",
     ]);
     expect(fields({ model: '(group + site)*age' })).toEqual([]);
+    expect(fields({ model: ' ' })).toEqual([
+      "stats.model: is empty: give a formula such as 'group*session + age'",
+    ]);
     expect(fields({ model: 'group; rm -rf' })[0]).toMatch(/^stats\.model: is not a formula/);
     expect(fields({ model: 'group*session', test: 'group:site' })).toEqual([
       "stats.test: names site, which the model 'group*session' does not",
