@@ -246,8 +246,14 @@ export const STATISTICS_STAGE = '(statistics)';
 export function exitCodeOf(s: RunSummary, statisticsAsked = false): number {
   if (s.status === 'cancelled') return 130;
   if (!(s.status === 'done' && (s.analysed ?? s.computed + s.reused) > 0)) return 1;
-  if (statisticsAsked && s.failures.some((f) => f.subject === STATISTICS_STAGE)) return 3;
-  return 0;
+  return statisticsAsked && statisticsMissing(s) ? 3 : 0;
+}
+
+/** Statistics were asked for but did not come: the stage failed, or tables were written without stats.tsv. */
+export function statisticsMissing(s: RunSummary): boolean {
+  if (s.failures.some((f) => f.subject === STATISTICS_STAGE)) return true;
+  const files = s.files ?? [];
+  return files.length > 0 && !files.some((f) => /^stats\.(tsv|csv)$/.test(f));
 }
 
 /** The summary's line about the grid: fixed by --grid-range, or the cohort's (comparable within the run only). */
@@ -306,7 +312,8 @@ export async function analyzeCommand(args: string[], io: CliIO): Promise<number>
       );
     printSummary(io, prefix, summary);
     if (summary.status === 'done' && !req.shard) io.err(gridNote(req.settings));
-    const code = exitCodeOf(summary, statisticsRequested(req.stats));
+    // A shard writes no tables: its statistics run at the merge.
+    const code = exitCodeOf(summary, statisticsRequested(req.stats) && !req.shard);
     if (code === 3)
       io.err(`${prefix}: the tables are written, but the statistics asked for could not run (exit 3)\n`);
     return code;

@@ -5,7 +5,14 @@
  */
 import type { StatsSettings } from '../api.ts';
 import type { CliIO } from '../cli.ts';
-import { ContractError, defaultStatsSettings, validateStatsSettings } from '../contract.ts';
+import { readFile } from 'node:fs/promises';
+import { join } from 'node:path';
+import {
+  ContractError,
+  defaultStatsSettings,
+  statisticsRequested,
+  validateStatsSettings,
+} from '../contract.ts';
 import { OutDirError, createLoopwiseService } from '../service/service.ts';
 import { UsageError, parseArgs } from './args.ts';
 import { exitCodeOf, printSummary } from './analyze.ts';
@@ -61,8 +68,11 @@ export async function mergeCommand(args: string[], io: CliIO): Promise<number> {
       ...(cache !== undefined ? { cacheDir: cache } : {}),
     });
     printSummary(io, prefix, summary);
-    // The statistics stage runs only when the settings ask for it: its failure is always exit 3.
-    const code = exitCodeOf(summary, true);
+    // The merged run's statistics settings (the shards' own, or those given here), as recorded.
+    const recorded = await readFile(join(summary.outDir ?? '', 'provenance.json'), 'utf8')
+      .then((t) => (JSON.parse(t) as { stats?: StatsSettings }).stats)
+      .catch(() => undefined);
+    const code = exitCodeOf(summary, recorded ? statisticsRequested(recorded) : false);
     if (code === 3)
       io.err(`${prefix}: the tables are written, but the statistics asked for could not run (exit 3)\n`);
     return code;

@@ -19,6 +19,8 @@ import {
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { RunSummary } from '../../electron/api.ts';
+import { exitCodeOf } from '../../electron/cli/analyze.ts';
 import { tableLine } from '../../electron/service/tables.ts';
 import { writeCohort } from '../service/support.ts';
 
@@ -130,6 +132,28 @@ describe('a statistics stage that was asked for and could not run', () => {
     // Without statistics the same cohort exits 0.
     const plain = loopwise(['analyze', one, '--out', join(root, 'one-level-plain'), '--workers', '1']);
     expect(plain.code).toBe(0);
+  });
+});
+
+describe('exit codes of a finished run', () => {
+  const done: RunSummary = {
+    runId: 'run-1',
+    status: 'done',
+    computed: 4,
+    reused: 0,
+    failures: [],
+    outDir: '/out',
+    analysed: 4,
+    files: ['features.tsv', 'stats.tsv'],
+  };
+  it('3 when statistics were asked for and the stage failed or wrote no stats table; else 0', () => {
+    expect(exitCodeOf(done, true)).toBe(0);
+    expect(exitCodeOf({ ...done, files: ['features.tsv'] }, true)).toBe(3);
+    expect(exitCodeOf({ ...done, files: ['features.tsv'] }, false)).toBe(0);
+    const failed = { ...done, failures: [{ subject: '(statistics)', reason: 'one level' }] };
+    expect(exitCodeOf(failed, true)).toBe(3);
+    expect(exitCodeOf({ ...done, status: 'cancelled' }, true)).toBe(130);
+    expect(exitCodeOf({ ...done, analysed: 0, computed: 0 }, true)).toBe(1);
   });
 });
 
@@ -306,7 +330,8 @@ describe('merge takes the same statistics options', () => {
       '--seed',
       '7',
     ]);
-    expect([0, 3]).toContain(r.code);
+    expect(r.code, r.err).toBe(0);
+    expect(existsSync(join(out, 'stats.tsv'))).toBe(true);
     const prov = JSON.parse(readFileSync(join(out, 'provenance.json'), 'utf8'));
     expect(prov.stats).toMatchObject({
       groupColumn: 'group',
