@@ -1,35 +1,92 @@
 /**
- * Small text tables of strings: the participants table (BIDS participants.tsv, or CSV) and the
- * node table. Read whole (they are small) through papaparse; .tsv is tab-separated as BIDS says,
- * other files get their separator detected.
+ * Small text tables of strings: the participants table (BIDS participants.tsv, or CSV), the node
+ * table and the sessions table. Read whole (they are small); .tsv is tab-separated as BIDS says,
+ * other files get their separator detected. Decoded as text.ts says (UTF-8, UTF-16 with a
+ * byte-order mark, else Windows-1252 with a warning). A row with more or fewer fields than the
+ * header is not used: its cells would land in the wrong columns.
  */
 import { readFile } from 'node:fs/promises';
 import { extname } from 'node:path';
-import Papa from 'papaparse';
 import type { ColumnInfo, CovariateValue, NodeInfo, QcFinding } from '../api.ts';
-import { detectDelimiter } from './delimited.ts';
+import { LineSplitter, RecordAssembler, detectDelimiter } from './delimited.ts';
 import { InputFileError, fsError } from './errors.ts';
+import { decodeText, excerpt } from './text.ts';
 
 export interface StringTable {
   header: string[];
   rows: string[][];
+  /** The line of the file each row starts on (1-based, as an editor shows it). */
+  lines: number[];
+  /** Rows left out because their number of fields differs from the header's. */
+  rejected: Array<{ line: number; fields: number }>;
 }
 
-export async function readStringTable(file: string): Promise<StringTable> {
-  let text: string;
+/** Where a table's own problems go: the cohort's findings, under the table's path as shown. */
+export interface TableReport {
+  findings: QcFinding[];
+  rel: string;
+  /** Prefixes the finding codes: 'participants-ragged', 'nodes-ragged', 'sessions-ragged'. */
+  table: 'participants' | 'nodes' | 'sessions';
+}
+
+export async function readStringTable(file: string, report?: TableReport): Promise<StringTable> {
+  let buf: Buffer;
   try {
-    text = (await readFile(file, 'utf8')).replace(/^\uFEFF/, '');
+    buf = await readFile(file);
   } catch (e) {
     throw fsError(file, e);
   }
+  if (buf.length === 0) throw new InputFileError(file, 'empty table', 'empty-file');
+  const { text, note } = decodeText(file, buf);
   if (text.trim() === '') throw new InputFileError(file, 'empty table', 'empty-file');
-  const d = extname(file).toLowerCase() === '.tsv' ? '\t' : detectDelimiter(text);
-  const parsed = Papa.parse<string[]>(text, {
-    delimiter: d === 'whitespace' ? '\t' : d,
-    skipEmptyLines: 'greedy',
-  });
-  const [header, ...rows] = parsed.data;
-  return { header: header.map((h) => h.trim()), rows };
+  if (note && report) {
+    report.findings.push({
+      severity: 'warning',
+      code: 'text-encoding',
+      file: report.rel,
+      subject: null,
+      message: note,
+    });
+  }
+  const found = extname(file).toLowerCase() === '.tsv' ? '\t' : detectDelimiter(text);
+  const d = found === 'whitespace' ? '\t' : found;
+  const records: Array<{ cells: string[]; line: number }> = [];
+  // No comment lines in a table: a '#' may start a value.
+  const assembler = new RecordAssembler(file, d, (cells, line) => records.push({ cells, line }), false);
+  const splitter = new LineSplitter((line, no) => assembler.line(line, no));
+  splitter.feed(text);
+  splitter.end();
+  assembler.end();
+  if (records.length === 0) throw new InputFileError(file, 'empty table', 'empty-file');
+  const [head, ...body] = records;
+  // Empty names at the end of the header come from separators at the ends of lines.
+  const header = head.cells.map((h) => h.trim());
+  while (header.length > 1 && header[header.length - 1] === '') header.pop();
+  const idCol = header.findIndex((h) => h.toLowerCase() === 'participant_id');
+  const rows: string[][] = [];
+  const lines: number[] = [];
+  const rejected: StringTable['rejected'] = [];
+  for (const { cells, line } of body) {
+    if (cells.every((c) => c.trim() === '')) continue;
+    // Empty fields past the header's width (a separator at the end of the line) carry nothing.
+    let k = cells.length;
+    while (k > header.length && cells[k - 1].trim() === '') k--;
+    if (k !== header.length) {
+      rejected.push({ line, fields: k });
+      report?.findings.push({
+        severity: 'error',
+        code: `${report.table}-ragged`,
+        file: report.rel,
+        subject: idCol >= 0 && cells[idCol] !== undefined ? excerpt(cells[idCol].trim(), 40) : null,
+        message: `line ${line} has ${k} fields but the header has ${header.length}${k > header.length ? ' (an extra separator?)' : ''}; the row is not used`,
+        where: [line - 1, Math.min(k, header.length)],
+      });
+      continue;
+    }
+    rows.push(k === cells.length ? cells : cells.slice(0, k));
+    lines.push(line);
+  }
+  return { header, rows, lines, rejected };
 }
 
 /** BIDS writes n/a for a missing value; an empty cell and NaN count as missing too. */
@@ -84,7 +141,7 @@ export function covariateColumns(
             code: 'covariate-not-numeric',
             file,
             subject: table.rows[r][0]?.trim() ?? null,
-            message: `column '${name}', row ${r + 2}: '${s}' is not a number; treated as missing`,
+            message: `column '${name}', line ${table.lines[r] ?? r + 2}: '${excerpt(s)}' is not a number; treated as missing`,
             where: [r + 1, c],
           });
           values[r][name] = null;
@@ -117,7 +174,7 @@ const COORD = {
 
 /** The node table: one row per region with a label, an optional network and optional x, y, z. */
 export async function readNodeTable(file: string, findings: QcFinding[], rel: string): Promise<NodeInfo[]> {
-  const t = await readStringTable(file);
+  const t = await readStringTable(file, { findings, rel, table: 'nodes' });
   const find = (re: RegExp): number => t.header.findIndex((h) => re.test(h));
   let label = find(LABEL);
   if (label < 0) {
@@ -144,7 +201,7 @@ export async function readNodeTable(file: string, findings: QcFinding[], rel: st
         code: 'nodes-bad-coordinate',
         file: rel,
         subject: null,
-        message: `row ${r + 2}: ${axis} coordinate '${row[c]}' is not a number`,
+        message: `line ${t.lines[r]}: ${axis} coordinate '${excerpt(row[c])}' is not a number`,
         where: [r + 1, c],
       });
     }
@@ -167,7 +224,7 @@ export async function readNodeTable(file: string, findings: QcFinding[], rel: st
         code: 'nodes-duplicate-label',
         file: rel,
         subject: null,
-        message: `label '${n.label}' is on rows ${before + 2} and ${n.index + 2}`,
+        message: `label '${excerpt(n.label, 40)}' is on lines ${t.lines[before]} and ${t.lines[n.index]}`,
       });
     } else seen.set(n.label, n.index);
   }
