@@ -3,5 +3,7 @@
 import { register } from 'tsx/esm/api';
 
 register();
-const { main } = await import('../electron/cli.ts');
-process.exitCode = await main(process.argv.slice(2));
+const { main, endQuietlyOnClosedPipe } = await import('../electron/cli.ts');
+const argv = process.argv.slice(2);
+endQuietlyOnClosedPipe(argv[0]);
+process.exitCode = await main(argv);

@@ -56,14 +56,26 @@ export function parseCell(s: string): number | undefined {
  * are usually written where the comma is the decimal mark.
  */
 export function detectDelimiter(sample: string): Delimiter {
-  const lines = sample
-    .split(/\r?\n|\r/)
-    .slice(0, 30)
-    .filter((l) => l.trim().length > 0 && !l.startsWith('#'));
+  const lines = sample.split(/\r?\n|\r/);
   // The last line of a sample may be cut short.
   if (lines.length > 1 && !/[\r\n]\s*$/.test(sample)) lines.pop();
+  // A quoted field may hold line breaks: lines join into records while a quote is open.
+  const records: string[] = [];
+  let open: string | null = null;
+  for (const l of lines) {
+    if (open === null && (l.trim().length === 0 || l.startsWith('#'))) continue;
+    const r: string = open === null ? l : `${open}\n${l}`;
+    if ((r.match(/"/g)?.length ?? 0) % 2 === 1) open = r;
+    else {
+      open = null;
+      records.push(r);
+      if (records.length === 30) break;
+    }
+  }
+  // A quote still open at the end of the sample says nothing about the separator.
+  if (open !== null && records.length === 0) records.push(open);
   for (const d of ['\t', ';', ','] as const) {
-    if (lines.length > 0 && lines.every((l) => countOutsideQuotes(l, d) > 0)) return d;
+    if (records.length > 0 && records.every((l) => countOutsideQuotes(l, d) > 0)) return d;
   }
   return 'whitespace';
 }
@@ -110,6 +122,15 @@ class RowSink {
     const r = ++this.rows; // 0-based row among the file's rows (row 0 is row0)
     if (this.width < 0) this.width = cells.length;
     else if (cells.length !== this.width) {
+      // Line 2 alone differs from lines 1 and 3: line 2 is the odd one.
+      if (r === 2 && cells.length === this.row0.length) {
+        throw new InputFileError(
+          this.file,
+          `ragged rows: line ${this.lines[1]} has ${this.width} fields but lines ${this.lines[0]} and ${line} have ${cells.length}`,
+          'ragged',
+          [1, Math.min(cells.length, this.width) - 1],
+        );
+      }
       throw new InputFileError(
         this.file,
         `ragged rows: line ${line} has ${cells.length} fields but line ${this.lines[r - 1]} has ${this.width}`,
@@ -182,16 +203,22 @@ class RowSink {
     }
     // A first column of numbers with a few words among them is data with typos, not region names;
     // likewise a first row of numbers with a few words after its first cell is no header.
+    const headerLike = p0.slice(1).some((v) => v === undefined);
+    const dataRows = nrows + (headerLike ? 0 : 1);
     if (this.col0Text && !cornerless) {
       const text = c0v.filter((v) => v === undefined).length;
-      if (text < c0v.length / 2) {
+      // Square with the first column as data, not square without it: that column is data.
+      const squareAsData = this.squareHint && w === dataRows && w - 1 !== dataRows;
+      if (text < c0v.length / 2 || (squareAsData && text < c0v.length)) {
         const i = c0v.findIndex((v) => v === undefined);
         throw this.notANumber(i + 1, 0, this.col0[i]);
       }
     }
-    if (!cornerless && p0.length > 2) {
+    if (!cornerless && p0.length > 2 && headerLike) {
       const text = p0.slice(1).filter((v) => v === undefined).length;
-      if (text > 0 && text < (p0.length - 1) / 2) {
+      const cols = w - (this.col0Text ? 1 : 0);
+      const squareAsData = this.squareHint && nrows + 1 === cols && nrows !== cols;
+      if (text < (p0.length - 1) / 2 || (squareAsData && text < p0.length - 1)) {
         const j = p0.findIndex((v, k) => k > 0 && v === undefined);
         throw this.notANumber(0, j, r0[j]);
       }

@@ -123,7 +123,8 @@ const hex = (bytes: number[]): string =>
 
 /** Up to `max` characters of text for a message: printable, no quotes or line breaks. */
 export function excerpt(s: string, max = 24): string {
-  const t = s.replace(/[\u0000-\u001f\u007f-\u009f\u2028\u2029'"`\\\uFFFD]/g, '?');
+  // Control and format characters (line breaks, bidi overrides), quotes and U+FFFD become '?'.
+  const t = s.replace(/[\p{Cc}\p{Cf}\p{Zl}\p{Zp}'"`\\\uFFFD]/gu, '?');
   const chars = [...t];
   return chars.length > max ? chars.slice(0, max - 3).join('') + '...' : t;
 }
@@ -187,7 +188,11 @@ export function sniffEncoding(file: string, head: Uint8Array): TextEncoding | 's
     // ASCII text in UTF-16: every other byte is 0.
     let even = 0;
     let odd = 0;
-    for (let i = 0; i < probe.length; i++) if (probe[i] === 0) i % 2 === 0 ? even++ : odd++;
+    for (let i = 0; i < probe.length; i++) {
+      if (probe[i] !== 0) continue;
+      if (i % 2 === 0) even++;
+      else odd++;
+    }
     const half = probe.length / 2;
     if (even > 0.4 * half && odd === 0)
       throw new InputFileError(
