@@ -128,7 +128,11 @@ function transformValue(
       if (!Number.isFinite(v)) throw new MatrixError(`correlation ${v} ${at} is not finite`, [i, j]);
       if (v > 1 + 1e-9 || v < -1 - 1e-9) {
         throw new MatrixError(
-          `correlation ${v} ${at} lies outside [−1, 1] (Fisher-z values? back-transform with tanh first)`,
+          `correlation ${v} ${at} lies outside [−1, 1] (${
+            Number.isInteger(v)
+              ? 'a whole number: counts or a label image? counts are weights (--input weight)'
+              : 'Fisher-z values? back-transform with tanh first'
+          })`,
           [i, j],
         );
       }

@@ -247,6 +247,17 @@ class RowSink {
         cols--;
       }
     }
+    // Time series: a first column that steps evenly (0, 1, 2, … or 0, 2, 4, … seconds) looks like a
+    // time or row index, as no region's signal is a straight line. It is read as given, with a word.
+    let indexNote: string | null = null;
+    if (!this.squareHint && !labels && cols >= 2 && rows >= 3) {
+      const t = [...(header ? [] : [p0[0]]), ...c0v] as number[];
+      const step = t[1] - t[0];
+      const even = t.every((x, k) => Math.abs(x - (t[0] + k * step)) <= 1e-9 * Math.max(1, Math.abs(x)));
+      if (step !== 0 && Number.isFinite(step) && even) {
+        indexNote = `column 1 steps evenly from ${t[0]} to ${t[t.length - 1]}, like a time or row index, yet is read as region 1; remove the column if it is an index`;
+      }
+    }
     if (cols <= 0 || rows <= 0) throw new InputFileError(file, 'empty file: no numeric data', 'empty-file');
     const c0 = labels ? 1 : 0;
 
@@ -265,7 +276,9 @@ class RowSink {
     }
     const colLabels = header ? (cornerless ? r0 : r0.slice(c0, c0 + cols)).map((s) => s.trim()) : null;
     const rowLabels = labels ? [...(header ? [] : [r0[0]]), ...this.col0].map((s) => s.trim()) : null;
-    return { rows, cols, values, colLabels, rowLabels };
+    const m: Matrix2D = { rows, cols, values, colLabels, rowLabels };
+    if (indexNote) m.notes = [{ code: 'index-column', message: indexNote }];
+    return m;
   }
 }
 
@@ -496,7 +509,7 @@ export async function readDelimited(
     records.end();
     const note = scan ? settleEncoding(file, scan).note : null;
     const m = sink.finish();
-    if (note) m.notes = [{ code: 'text-encoding', message: note }];
+    if (note) m.notes = [{ code: 'text-encoding', message: note }, ...(m.notes ?? [])];
     return m;
   }
 }

@@ -143,6 +143,13 @@ function parseMatrix(file: string, body: Buffer, le: boolean, index: number): Ma
           'truncated',
         );
       }
+      if (real.data.length > count * t.size) {
+        throw new InputFileError(
+          file,
+          `variable '${name}' stores ${Math.floor(real.data.length / t.size)} values but its dimensions (${dims.join('×')}) hold ${count}: corrupt`,
+          'bad-format',
+        );
+      }
       const dv = new DataView(real.data.buffer, real.data.byteOffset, real.data.byteLength);
       const data = new Float64Array(count);
       for (let k = 0; k < count; k++) data[k] = t.get(dv, k * t.size, le);

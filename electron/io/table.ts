@@ -62,6 +62,24 @@ export async function readStringTable(file: string, report?: TableReport): Promi
   // Empty names at the end of the header come from separators at the ends of lines.
   const header = head.cells.map((h) => h.trim());
   while (header.length > 1 && header[header.length - 1] === '') header.pop();
+  // A name used twice would let the second column overwrite the first: the first one counts.
+  const seen = new Map<string, number>();
+  header.forEach((h, c) => {
+    if (h === '') return;
+    const first = seen.get(h);
+    if (first === undefined) {
+      seen.set(h, c);
+      return;
+    }
+    header[c] = '';
+    report?.findings.push({
+      severity: 'warning',
+      code: `${report.table}-duplicate-column`,
+      file: report.rel,
+      subject: null,
+      message: `column '${excerpt(h, 40)}' appears twice (columns ${first + 1} and ${c + 1}); the second is not used`,
+    });
+  });
   const idCol = header.findIndex((h) => h.toLowerCase() === 'participant_id');
   const rows: string[][] = [];
   const lines: number[] = [];

@@ -6,6 +6,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import type { QcFinding } from '../../electron/api.ts';
+import { toDistances } from '../../electron/engine/transform.ts';
 import { InputFileError } from '../../electron/io/errors.ts';
 import { checkSquare } from '../../electron/io/qc.ts';
 import { readMatrixFile, readTable2D } from '../../electron/io/read-matrix.ts';
@@ -125,6 +126,17 @@ describe('malformed corpus', () => {
       for (const r of rows) for (const cell of r) expect(cell).not.toMatch(/\uFFFD/);
     });
   }
+
+  it('the transform does not call whole numbers Fisher z', () => {
+    const counts = { n: 3, values: Float64Array.from([0, 12, 3, 12, 0, 40, 3, 40, 0]) };
+    expect(() => toDistances(counts, { input: 'correlation' })).toThrow(
+      /correlation 12 at row 2, column 1 lies outside \[−1, 1\] \(a whole number: counts or a label image\? counts are weights \(--input weight\)\)/,
+    );
+    const z = { n: 2, values: Float64Array.from([Infinity, 1.5, 1.5, Infinity]) };
+    expect(() => toDistances(z, { input: 'correlation' })).toThrow(
+      /Fisher-z values\? back-transform with tanh/,
+    );
+  });
 
   it('keeps "Gruppe Ä" and "Gruppe Ö" apart in a Windows-1252 participants table', async () => {
     const file = cases.find((c) => c.name === 'participants-cp1252.tsv')!.file;

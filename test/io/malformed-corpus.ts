@@ -396,6 +396,29 @@ export function corpus(): Case[] {
     read([1, NaN, Infinity, NaN, 1, NaN, -Infinity, NaN, 1]),
   );
 
+  add('time-index-column.csv', '0,0.1,0.2\n1,0.3,0.1\n2,0.2,0.5\n3,0.6,0.4\n', {
+    kind: 'read',
+    rows: 4,
+    cols: 3,
+    values: [0, 0.1, 0.2, 1, 0.3, 0.1, 2, 0.2, 0.5, 3, 0.6, 0.4],
+    rowLabels: null,
+    colLabels: null,
+    notes: ['index-column'],
+    note: /^column 1 steps evenly from 0 to 3, like a time or row index, yet is read as region 1; remove the column if it is an index$/,
+    pick: { timeSeries: true },
+  });
+  add('time-seconds-column.tsv', 'time\tA\tB\n0\t0.1\t0.2\n2.5\t0.3\t0.1\n5\t0.2\t0.5\n', {
+    kind: 'read',
+    rows: 3,
+    cols: 3,
+    values: [0, 0.1, 0.2, 2.5, 0.3, 0.1, 5, 0.2, 0.5],
+    rowLabels: null,
+    colLabels: ['time', 'A', 'B'],
+    notes: ['index-column'],
+    note: /from 0 to 5, like a time/,
+    pick: { timeSeries: true },
+  });
+
   // Values: QC of what was read.
   add(
     'asymmetric.csv',
@@ -636,6 +659,16 @@ export function corpus(): Case[] {
       matrixElement('R_partial', [3, 3], colMajor),
     ),
     read(R3, { pick: { variable: 'R_partial' } }),
+  );
+  add(
+    'more-values-than-dims.mat',
+    mat(matrixElement('R', [3, 3], [...colMajor, 0])),
+    error('bad-format', /variable 'R' stores 10 values but its dimensions \(3×3\) hold 9: corrupt/),
+  );
+  add(
+    'empty-variable.mat',
+    mat(matrixElement('E', [0, 0], [])),
+    error('mat-variable-type', /holds no real numeric array \(E \(0×0 double\)\)/),
   );
   add('no-variables.mat', mat(), error('mat-variable-type', /holds no real numeric array \(no variables\)/));
   add(
