@@ -13,6 +13,7 @@
  */
 import { createReadStream } from 'node:fs';
 import { open } from 'node:fs/promises';
+import { StringDecoder } from 'node:string_decoder';
 import type { Matrix2D } from './array.ts';
 import { InputFileError, fsError } from './errors.ts';
 import { Utf8Scanner, excerpt, settleEncoding, sniffEncoding } from './text.ts';
@@ -454,7 +455,21 @@ export async function streamText(
   onText: (text: string) => void,
 ): Promise<void> {
   const stream = createReadStream(file, { highWaterMark: 1 << 20 });
-  const dec = new TextDecoder(encoding);
+  // Node's StringDecoder is the faster for UTF-8 and UTF-16LE; TextDecoder knows the others.
+  const dec =
+    encoding === 'utf-8' || encoding === 'utf-16le'
+      ? new StringDecoder(encoding === 'utf-8' ? 'utf8' : 'utf16le')
+      : null;
+  const textDec = dec ? null : new TextDecoder(encoding);
+  let first = true;
+  const emit = (t: string): void => {
+    if (first && t.length > 0) {
+      first = false;
+      // StringDecoder keeps a byte-order mark; it is no part of the text.
+      if (t.charCodeAt(0) === 0xfeff) t = t.slice(1);
+    }
+    onText(t);
+  };
   try {
     for await (const chunk of stream) {
       const bytes = chunk as Buffer;
@@ -462,13 +477,13 @@ export async function streamText(
         scan.feed(bytes);
         if (encoding === 'utf-8' && scan.invalid) throw NOT_UTF8;
       }
-      onText(dec.decode(bytes, { stream: true }));
+      emit(dec ? dec.write(bytes) : textDec!.decode(bytes, { stream: true }));
     }
     if (scan) {
       scan.end();
       if (encoding === 'utf-8' && scan.invalid) throw NOT_UTF8;
     }
-    onText(dec.decode());
+    emit(dec ? dec.end() : textDec!.decode());
   } catch (e) {
     if (e instanceof InputFileError || e === NOT_UTF8) throw e;
     throw fsError(file, e);
