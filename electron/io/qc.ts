@@ -199,6 +199,21 @@ export function checkSquare(m: Matrix2D, o: CheckOptions): CheckResult {
         ),
       );
     } else {
+      // Whole numbers within ±1 (−1, 0, 1 only): a binarised graph rather than correlations.
+      let nonzero = 0;
+      for (let i = 0; i < n && integral; i++)
+        for (let j = 0; j < n; j++)
+          if (j !== i && live(i) && live(j) && Number.isFinite(v(i, j)) && v(i, j) !== 0) nonzero++;
+      if (integral && outside === 0 && nonzero > 0 && kept >= 3) {
+        out.push(
+          finding(
+            'warning',
+            'integer-values',
+            'holds only the whole numbers −1, 0 and 1 off the diagonal: a binarised graph rather than correlations? A binary graph is a weight matrix (--input weight)',
+            [0, 1],
+          ),
+        );
+      }
       if (outside > 0) {
         out.push(
           finding(

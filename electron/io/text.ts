@@ -137,7 +137,8 @@ function around(scan: Utf8Scanner): string {
   while (a > 0 && ctx[a - 1] !== 0x0a && ctx[a - 1] !== 0x0d) a--;
   let b = at;
   while (b < ctx.length && ctx[b] !== 0x0a && ctx[b] !== 0x0d) b++;
-  return excerpt(new TextDecoder('windows-1252').decode(Uint8Array.from(ctx.slice(a, b))), 40);
+  const line = new TextDecoder('windows-1252').decode(Uint8Array.from(ctx.slice(a, b)));
+  return excerpt(line.replace(/\t/g, ' '), 40);
 }
 
 const SAVE_AS_UTF8 = 'save it as UTF-8 (in Excel: Save As → "CSV UTF-8"; in an editor: encoding UTF-8)';
