@@ -76,6 +76,22 @@ export function toDistances(matrix: SquareMatrix, options: TransformOptions): Di
     );
   }
 
+  // The diagonal is ignored, but an infinite one (atanh(1) = ∞) or one far beyond 1 says the
+  // values are Fisher z, not correlations, even when every other value lies in [−1, 1].
+  if (options.input === 'correlation' && n >= 2) {
+    let z = true;
+    for (let i = 0; i < n && z; i++) {
+      const d = values[i * n + i];
+      if (!(d === Infinity || d === -Infinity || (Number.isFinite(d) && Math.abs(d) > 3))) z = false;
+    }
+    if (z) {
+      throw new MatrixError(
+        `looks like Fisher z (diagonal ${values[0]}): give correlations (tanh of the values), or set the diagonal to 1 if they already are correlations`,
+        [0, 0],
+      );
+    }
+  }
+
   let scale = 0;
   for (let i = 0; i < n; i++) {
     for (let j = 0; j < n; j++) {

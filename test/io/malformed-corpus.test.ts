@@ -6,6 +6,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import type { QcFinding } from '../../electron/api.ts';
+import { main } from '../../electron/cli.ts';
 import { toDistances } from '../../electron/engine/transform.ts';
 import { InputFileError } from '../../electron/io/errors.ts';
 import { checkSquare } from '../../electron/io/qc.ts';
@@ -127,14 +128,33 @@ describe('malformed corpus', () => {
     });
   }
 
-  it('the transform does not call whole numbers Fisher z', () => {
+  it('the transform tells whole numbers from Fisher z, and sees Fisher z in the diagonal', () => {
     const counts = { n: 3, values: Float64Array.from([0, 12, 3, 12, 0, 40, 3, 40, 0]) };
     expect(() => toDistances(counts, { input: 'correlation' })).toThrow(
       /correlation 12 at row 2, column 1 lies outside \[−1, 1\] \(a whole number: counts or a label image\? counts are weights \(--input weight\)\)/,
     );
-    const z = { n: 2, values: Float64Array.from([Infinity, 1.5, 1.5, Infinity]) };
+    const z = { n: 2, values: Float64Array.from([1, 1.5, 1.5, 1]) };
     expect(() => toDistances(z, { input: 'correlation' })).toThrow(
       /Fisher-z values\? back-transform with tanh/,
+    );
+    // |z| < 1 everywhere but an infinite diagonal: still Fisher z, said so by the transform too
+    // (the `diagram` door has no QC step before it).
+    const small = { n: 2, values: Float64Array.from([Infinity, 0.5, 0.5, Infinity]) };
+    expect(() => toDistances(small, { input: 'correlation' })).toThrow(
+      /^looks like Fisher z \(diagonal Infinity\): give correlations/,
+    );
+    expect(toDistances(small, { input: 'weight' }).values[0]).toBe(2);
+  });
+
+  it('loopwise diagram refuses a Fisher-z file with |z| < 1, naming it', async () => {
+    const file = cases.find((c) => c.name === 'fisher-z-infinite-diagonal.csv')!.file;
+    let out = '';
+    let err = '';
+    const code = await main(['diagram', file], { out: (t) => (out += t), err: (t) => (err += t) });
+    expect(code).toBe(2);
+    expect(out).toBe('');
+    expect(err).toBe(
+      `loopwise diagram: ${file}: looks like Fisher z (diagonal Infinity): give correlations (tanh of the values), or set the diagonal to 1 if they already are correlations\n`,
     );
   });
 
