@@ -16,9 +16,9 @@ export interface StringTable {
   header: string[];
   rows: string[][];
   /** The line of the file each row starts on (1-based, as an editor shows it). */
-  lines: number[];
-  /** Rows left out because their number of fields differs from the header's. */
-  rejected: Array<{ line: number; fields: number }>;
+  lines?: number[];
+  /** Rows whose number of fields differs from the header's (left out, or kept blank). */
+  rejected?: Array<{ line: number; fields: number }>;
 }
 
 /** Where a table's own problems go: the cohort's findings, under the table's path as shown. */
@@ -27,6 +27,11 @@ export interface TableReport {
   rel: string;
   /** Prefixes the finding codes: 'participants-ragged', 'nodes-ragged', 'sessions-ragged'. */
   table: 'participants' | 'nodes' | 'sessions';
+  /**
+   * Rows stand for something by their place (the node table: row k is region k): a ragged row is
+   * kept there with every field empty, instead of being left out.
+   */
+  keepPlace?: boolean;
 }
 
 export async function readStringTable(file: string, report?: TableReport): Promise<StringTable> {
@@ -83,7 +88,7 @@ export async function readStringTable(file: string, report?: TableReport): Promi
   const idCol = header.findIndex((h) => h.toLowerCase() === 'participant_id');
   const rows: string[][] = [];
   const lines: number[] = [];
-  const rejected: StringTable['rejected'] = [];
+  const rejected: NonNullable<StringTable['rejected']> = [];
   for (const { cells, line } of body) {
     if (cells.every((c) => c.trim() === '')) continue;
     // Empty fields past the header's width (a separator at the end of the line) carry nothing.
@@ -96,9 +101,13 @@ export async function readStringTable(file: string, report?: TableReport): Promi
         code: `${report.table}-ragged`,
         file: report.rel,
         subject: idCol >= 0 && cells[idCol] !== undefined ? excerpt(cells[idCol].trim(), 40) : null,
-        message: `line ${line} has ${k} fields but the header has ${header.length}${k > header.length ? ' (an extra separator?)' : ''}; the row is not used`,
+        message: `line ${line} has ${k} fields but the header has ${header.length}${k > header.length ? ' (an extra separator?)' : ''}; ${report.keepPlace ? 'its fields are not used' : 'the row is not used'}`,
         where: [line - 1, Math.min(k, header.length)],
       });
+      if (report?.keepPlace) {
+        rows.push(header.map(() => ''));
+        lines.push(line);
+      }
       continue;
     }
     rows.push(k === cells.length ? cells : cells.slice(0, k));
@@ -159,7 +168,7 @@ export function covariateColumns(
             code: 'covariate-not-numeric',
             file,
             subject: table.rows[r][0]?.trim() ?? null,
-            message: `column '${name}', line ${table.lines[r] ?? r + 2}: '${excerpt(s)}' is not a number; treated as missing`,
+            message: `column '${name}', line ${table.lines?.[r] ?? r + 2}: '${excerpt(s)}' is not a number; treated as missing`,
             where: [r + 1, c],
           });
           values[r][name] = null;
@@ -192,7 +201,7 @@ const COORD = {
 
 /** The node table: one row per region with a label, an optional network and optional x, y, z. */
 export async function readNodeTable(file: string, findings: QcFinding[], rel: string): Promise<NodeInfo[]> {
-  const t = await readStringTable(file, { findings, rel, table: 'nodes' });
+  const t = await readStringTable(file, { findings, rel, table: 'nodes', keepPlace: true });
   const find = (re: RegExp): number => t.header.findIndex((h) => re.test(h));
   let label = find(LABEL);
   if (label < 0) {
@@ -219,7 +228,7 @@ export async function readNodeTable(file: string, findings: QcFinding[], rel: st
         code: 'nodes-bad-coordinate',
         file: rel,
         subject: null,
-        message: `line ${t.lines[r]}: ${axis} coordinate '${excerpt(row[c])}' is not a number`,
+        message: `line ${t.lines?.[r] ?? r + 2}: ${axis} coordinate '${excerpt(row[c])}' is not a number`,
         where: [r + 1, c],
       });
     }
@@ -242,7 +251,7 @@ export async function readNodeTable(file: string, findings: QcFinding[], rel: st
         code: 'nodes-duplicate-label',
         file: rel,
         subject: null,
-        message: `label '${excerpt(n.label, 40)}' is on lines ${t.lines[before]} and ${t.lines[n.index]}`,
+        message: `label '${excerpt(n.label, 40)}' is on lines ${t.lines?.[before] ?? before + 2} and ${t.lines?.[n.index] ?? n.index + 2}`,
       });
     } else seen.set(n.label, n.index);
   }
