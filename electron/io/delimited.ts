@@ -16,7 +16,7 @@ import { open } from 'node:fs/promises';
 import { StringDecoder } from 'node:string_decoder';
 import type { Matrix2D } from './array.ts';
 import { InputFileError, fsError } from './errors.ts';
-import { Utf8Scanner, excerpt, settleEncoding, sniffEncoding } from './text.ts';
+import { Utf8Scanner, excerpt, replacementNote, settleEncoding, sniffEncoding } from './text.ts';
 import type { TextEncoding } from './text.ts';
 
 export type Delimiter = ',' | '\t' | ';' | 'whitespace';
@@ -399,7 +399,10 @@ export class RecordAssembler {
     /** Lines starting with '#' are comments (matrices); tables have none. */
     private readonly comments = true,
   ) {}
+  /** The first line that holds U+FFFD: text garbled before it reached us. */
+  replacement: { line: number; text: string } | null = null;
   line(text: string, no: number): void {
+    if (this.replacement === null && text.includes('\uFFFD')) this.replacement = { line: no, text };
     if (this.pending === null) {
       const t = this.d === 'whitespace' ? text.trim() : text;
       const lead = t.trimStart();
@@ -524,7 +527,10 @@ export async function readDelimited(
     records.end();
     const note = scan ? settleEncoding(file, scan).note : null;
     const m = sink.finish();
-    if (note) m.notes = [{ code: 'text-encoding', message: note }, ...(m.notes ?? [])];
+    const garbled = records.replacement ? replacementNote(records.replacement) : null;
+    const notes = [note, garbled].filter((x): x is string => x !== null);
+    if (notes.length > 0)
+      m.notes = [...notes.map((message) => ({ code: 'text-encoding', message })), ...(m.notes ?? [])];
     return m;
   }
 }

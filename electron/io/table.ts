@@ -10,7 +10,7 @@ import { extname } from 'node:path';
 import type { ColumnInfo, CovariateValue, NodeInfo, QcFinding } from '../api.ts';
 import { LineSplitter, RecordAssembler, detectDelimiter } from './delimited.ts';
 import { InputFileError, fsError } from './errors.ts';
-import { decodeText, excerpt } from './text.ts';
+import { decodeText, excerpt, replacementNote } from './text.ts';
 
 export interface StringTable {
   header: string[];
@@ -63,6 +63,15 @@ export async function readStringTable(file: string, report?: TableReport): Promi
   splitter.end();
   assembler.end();
   if (records.length === 0) throw new InputFileError(file, 'empty table', 'empty-file');
+  if (assembler.replacement && report) {
+    report.findings.push({
+      severity: 'warning',
+      code: 'text-encoding',
+      file: report.rel,
+      subject: null,
+      message: replacementNote(assembler.replacement),
+    });
+  }
   const [head, ...body] = records;
   // Empty names at the end of the header come from separators at the ends of lines.
   const header = head.cells.map((h) => h.trim());

@@ -216,6 +216,20 @@ export function sniffEncoding(file: string, head: Uint8Array): TextEncoding | 's
   return 'scan';
 }
 
+/**
+ * The note for a file that already holds U+FFFD, the replacement character a converter writes for
+ * bytes it could not read: the original characters are lost, and values that differed only there
+ * ("Gruppe Ä", "Gruppe Ö") now look the same.
+ */
+export function replacementNote(at: { line: number; text: string }): string {
+  const k = at.text.indexOf('\uFFFD');
+  const shown = at.text
+    .slice(Math.max(0, k - 20), k + 20)
+    .replace(/\uFFFD/g, '\u25A1')
+    .replace(/\t/g, ' ');
+  return `line ${at.line} holds the replacement character U+FFFD (shown as \u25A1: '${excerpt(shown, 40)}'): the text was garbled by an earlier conversion and its original characters are lost; values that differed only there now look alike. Fix the source file`;
+}
+
 /** Decodes a whole file's bytes (small tables). */
 export function decodeText(
   file: string,

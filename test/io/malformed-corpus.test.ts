@@ -55,8 +55,9 @@ describe('malformed corpus', () => {
         if (x.colLabels !== undefined) expect(m.colLabels).toEqual(x.colLabels);
         expect((m.notes ?? []).map((n) => n.code)).toEqual(x.notes ?? []);
         if (x.note) expect(m.notes![0].message).toMatch(x.note);
-        // No reader ever hands over a replacement character.
-        for (const l of [...(m.rowLabels ?? []), ...(m.colLabels ?? [])]) expect(l).not.toMatch(/\uFFFD/);
+        // No reader ever makes a replacement character; one already in the file is reported.
+        if (!c.bytes.includes(Buffer.from('\uFFFD')))
+          for (const l of [...(m.rowLabels ?? []), ...(m.colLabels ?? [])]) expect(l).not.toMatch(/\uFFFD/);
         return;
       }
       if (x.kind === 'error') {
@@ -130,7 +131,8 @@ describe('malformed corpus', () => {
         expect(findings[k].message).toMatch(want.message);
         if (want.subject !== undefined) expect(findings[k].subject).toBe(want.subject);
       });
-      for (const r of rows) for (const cell of r) expect(cell).not.toMatch(/\uFFFD/);
+      if (!c.bytes.includes(Buffer.from('\uFFFD')))
+        for (const r of rows) for (const cell of r) expect(cell).not.toMatch(/\uFFFD/);
     });
   }
 

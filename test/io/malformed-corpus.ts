@@ -298,6 +298,16 @@ export function corpus(): Case[] {
     error('bad-encoding', /neither UTF-8 nor Windows-1252: byte 0x81 at line 4/),
   );
   add(
+    'already-garbled-labels.csv',
+    csv([['', 'Montr\uFFFDal', 'B', 'C'], ...R.map((r, i) => [['Montr\uFFFDal', 'B', 'C'][i], ...r])]),
+    read(R3, {
+      colLabels: ['Montr\uFFFDal', 'B', 'C'],
+      rowLabels: ['Montr\uFFFDal', 'B', 'C'],
+      notes: ['text-encoding'],
+      note: /^line 1 holds the replacement character U\+FFFD/,
+    }),
+  );
+  add(
     'utf16le-no-bom.csv',
     Buffer.from(csv(R), 'utf16le'),
     error('bad-encoding', /UTF-16 \(little-endian\) text without a byte-order mark/),
@@ -844,6 +854,27 @@ export function corpus(): Case[] {
           code: 'participants-unreadable',
           severity: 'error',
           message: /mixes text encodings: 0xF6 at line 3/,
+        },
+      ],
+    },
+  );
+  add(
+    'participants-already-garbled.tsv',
+    'participant_id\tgroup\nsub-01\tGruppe \uFFFD\nsub-02\tGruppe \uFFFD\n',
+    {
+      kind: 'table',
+      table: 'participants',
+      header: ['participant_id', 'group'],
+      rows: [
+        ['sub-01', 'Gruppe \uFFFD'],
+        ['sub-02', 'Gruppe \uFFFD'],
+      ],
+      findings: [
+        {
+          code: 'text-encoding',
+          severity: 'warning',
+          message:
+            /^line 2 holds the replacement character U\+FFFD \(shown as \u25A1: 'sub-01 Gruppe \u25A1'\): the text was garbled/,
         },
       ],
     },
