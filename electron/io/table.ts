@@ -161,6 +161,34 @@ export function covariateColumns(
     const detected =
       present.length > 0 && present.every((s) => asNumber(s) !== null) ? 'numeric' : 'categorical';
     const kind = kinds[name] ?? detected;
+    if (kinds[name] === undefined && detected === 'categorical') {
+      // A column of numbers with a few words among them (a typo) or with decimal commas would turn
+      // into a categorical covariate with a level per value: say so.
+      const words = cells.map((s, r) => ({ s, r })).filter(({ s }) => !isMissing(s) && asNumber(s) === null);
+      const commas = words.filter(({ s }) => /^\s*[+-]?\d+,\d+\s*$/.test(s));
+      const numbers = present.length - words.length;
+      const at = (x: { s: string; r: number }): string =>
+        `line ${table.lines?.[x.r] ?? x.r + 2}: '${excerpt(x.s)}'`;
+      if (commas.length > 0 && commas.length === words.length) {
+        findings.push({
+          severity: 'warning',
+          code: 'covariate-decimal-comma',
+          file,
+          subject: null,
+          message: `column '${name}' holds numbers with a decimal comma (${at(commas[0])}); read as categorical with ${new Set(present.map((x) => x.trim())).size} levels. Write decimal points in the file`,
+          where: [commas[0].r + 1, c],
+        });
+      } else if (numbers > 0 && words.length <= numbers / 4) {
+        findings.push({
+          severity: 'warning',
+          code: 'covariate-mostly-numeric',
+          file,
+          subject: null,
+          message: `column '${name}' is read as categorical because ${words.length} of ${present.length} values ${words.length === 1 ? 'is' : 'are'} not a number (${words.slice(0, 3).map(at).join(', ')}); fix ${words.length === 1 ? 'it' : 'them'}, or read the column as numbers (--numeric ${name}) to take ${words.length === 1 ? 'it' : 'them'} as missing`,
+          where: [words[0].r + 1, c],
+        });
+      }
+    }
     let missing = 0;
     const levels = new Set<string>();
     cells.forEach((s, r) => {

@@ -58,6 +58,28 @@ describe('reader findings in a cohort report', () => {
     expect(report.subjects.filter((s) => s.usable).map((s) => s.id)).toEqual(['sub-01', 'sub-03']);
   });
 
+  it('a numeric column with one typo, or with decimal commas, does not silently turn categorical', async () => {
+    const table =
+      'participant_id\tage\tfd\tsite\n' +
+      'sub-01\t31\t0,12\tA\nsub-02\t3O\t0,2\tB\nsub-03\t28\t0,31\tA\nsub-04\t45\t0,05\tB\nsub-05\t39\tn/a\tA\n';
+    const files: Record<string, string> = {};
+    for (let k = 1; k <= 5; k++) files[`sub-0${k}_conn.csv`] = R;
+    const report = await openCohort({ dir: cohort(Buffer.from(table), files) });
+    const age = report.findings.filter((f) => f.code === 'covariate-mostly-numeric');
+    expect(age).toHaveLength(1);
+    expect(age[0]).toMatchObject({ severity: 'warning', file: 'participants.tsv' });
+    expect(age[0].message).toBe(
+      "column 'age' is read as categorical because 1 of 5 values is not a number (line 3: '3O'); fix it, or read the column as numbers (--numeric age) to take it as missing",
+    );
+    const fd = report.findings.filter((f) => f.code === 'covariate-decimal-comma');
+    expect(fd).toHaveLength(1);
+    expect(fd[0].message).toMatch(
+      /^column 'fd' holds numbers with a decimal comma \(line 2: '0,12'\); read as categorical with 4 levels/,
+    );
+    // A truly categorical column says nothing.
+    expect(report.findings.filter((f) => /'site'/.test(f.message))).toEqual([]);
+  });
+
   it('a matrix with Windows-1252 region names: read, with a warning on that subject', async () => {
     const m = Buffer.from(
       ',Précuneus,Insula,Cingulum\nPrécuneus,1,0.5,-0.25\nInsula,0.5,1,0.125\nCingulum,-0.25,0.125,1\n',
