@@ -73,7 +73,8 @@ export function parseNpyHeader(file: string, head: Buffer): NpyHeader {
     .split(',')
     .map((s) => s.trim())
     .filter((s) => s.length > 0)
-    .map(Number);
+    // Python 2 wrote long integers with an L suffix: (3L, 3L).
+    .map((s) => Number(s.replace(/^(\d+)L$/, '$1')));
   if (shape.some((d) => !Number.isInteger(d) || d < 0))
     throw new InputFileError(file, `bad .npy shape (${excerpt(shapeMatch[1], 40)})`, 'bad-format');
   return {

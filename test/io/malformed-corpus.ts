@@ -248,6 +248,29 @@ export function corpus(): Case[] {
     read(R3, { colLabels: ['L, M1', 'R "M1"', 'Precuneus'], rowLabels: ['L, M1', 'R "M1"', 'Precuneus'] }),
   );
   add('no-final-newline.csv', csv(R).trimEnd(), read());
+  add(
+    'aligned-header-percent-comments.txt',
+    '% saved by MATLAB\n' +
+      ['A B C', ...R.map((r) => r.map((x) => String(x).padStart(7)).join(' '))].join('\n') +
+      '\n',
+    read(R3, { colLabels: ['A', 'B', 'C'], rowLabels: null }),
+  );
+  add(
+    'semicolon-labels.csv',
+    csv([['', ...labels], ...R.map((r, i) => [labels[i], ...r])], ';'),
+    read(R3, { colLabels: labels, rowLabels: labels }),
+  );
+  add(
+    'tab-labels-trailing-tab.tsv',
+    R.map((r, i) => [labels[i], ...r].join('\t') + '\t').join('\n') + '\n',
+    read(R3, { rowLabels: labels, colLabels: null }),
+  );
+  add(
+    'index-label-column.csv',
+    csv(R.map((r, i) => [i + 1, ...r])),
+    read(R3, { rowLabels: ['1', '2', '3'], colLabels: null }),
+  );
+  add('whitespace-tabs-and-spaces.txt', R.map((r) => r.join(' \t ')).join('\n') + '\n', read());
 
   // Line ends, byte-order marks, encodings.
   add(
@@ -523,6 +546,11 @@ export function corpus(): Case[] {
     values: ts,
     pick: { timeSeries: true },
   });
+  add(
+    'python2-long-shape.npy',
+    npy('<f8', [3, 3], f64(R3), { dict: "{'descr': '<f8', 'fortran_order': False, 'shape': (3L, 3L), }" }),
+    read(),
+  );
   add('version-2.npy', npy('<f8', [3, 3], f64(R3), { version: 2 }), read());
   const half = Buffer.alloc(18);
   [0x3c00, 0x3800, 0xb400, 0x3800, 0x3c00, 0x3000, 0xb400, 0x3000, 0x3c00].forEach((h, k) =>
