@@ -34,6 +34,7 @@ export class Utf8Scanner {
   private seq: number[] = [];
   private seqStart = 0;
   private seqLine = 1;
+  private cr = false;
 
   feed(buf: Uint8Array): void {
     const base = this.offset;
@@ -41,9 +42,12 @@ export class Utf8Scanner {
       const b = buf[i];
       if (this.need === 0) {
         if (b < 0x80) {
-          if (b === 0x0a) this.line++;
+          // Lines end at \n, \r\n or a lone \r, as the line splitter counts them.
+          if (b === 0x0d || (b === 0x0a && !this.cr)) this.line++;
+          this.cr = b === 0x0d;
           continue;
         }
+        this.cr = false;
         if (this.unassigned === null && CP1252_UNASSIGNED.has(b))
           this.unassigned = { offset: base + i, line: this.line, byte: b };
         this.seq = [b];

@@ -308,6 +308,26 @@ export function corpus(): Case[] {
     }),
   );
   add(
+    'cp1252-cr-line-ends.csv',
+    Buffer.from(withAccents.replace(/\n/g, '\r').replace('Insula_ä,0.5', 'Insula_\u00e4,0.5'), 'latin1'),
+    read(R3, {
+      colLabels: accented,
+      rowLabels: accented,
+      notes: ['text-encoding'],
+      note: /is not UTF-8 \(0xE9 at line 1, byte offset 3/,
+    }),
+  );
+  add(
+    'cp1252-crlf-third-line.csv',
+    Buffer.from('"",A,B\r\nA,1,0.5\r\nB\u00e9,0.5,1\r\n', 'latin1'),
+    read([1, 0.5, 0.5, 1], {
+      colLabels: ['A', 'B'],
+      rowLabels: ['A', 'Bé'],
+      notes: ['text-encoding'],
+      note: /is not UTF-8 \(0xE9 at line 3, byte offset 18: 'Bé,0.5,1'\)/,
+    }),
+  );
+  add(
     'mixed-encodings.csv',
     Buffer.concat([text('"Précuneus",1,0.5\n'), Buffer.from('"Précuneus2",0.5,1\n', 'latin1')]),
     error(
