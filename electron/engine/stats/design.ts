@@ -168,7 +168,9 @@ export function buildDesign(subjects: DesignSubject[], spec: DesignSpec): Design
     const col = (spec.groupColumn ?? spec.effect)!;
     if (spec.groupColumn) kinds[col] = 'categorical';
     if (covariates.includes(col)) {
-      throw new DesignError(`covariate '${col}' is the ${spec.groupColumn ? 'grouping column' : 'effect'} itself`);
+      throw new DesignError(
+        `covariate '${col}' is the ${spec.groupColumn ? 'grouping column' : 'effect'} itself`,
+      );
     }
     tested = [col];
     terms = [tested, ...covariates.map((c) => [c])];
@@ -256,9 +258,14 @@ export function buildDesign(subjects: DesignSubject[], spec: DesignSpec): Design
     return kinds[v] ?? (rows.every((s) => typeof s.covariates[v] === 'number') ? 'numeric' : 'categorical');
   }
   if (spec.reference) {
-    const holder = testedCategorical.find((v) => rows.some((s) => String(s.covariates[v]) === spec.reference));
+    const holder = testedCategorical.find((v) =>
+      rows.some((s) => String(s.covariates[v]) === spec.reference),
+    );
     if (!holder) {
-      const where = testedCategorical.length > 0 ? testedCategorical.map((v) => `'${v}'`).join(', ') : 'no categorical column';
+      const where =
+        testedCategorical.length > 0
+          ? testedCategorical.map((v) => `'${v}'`).join(', ')
+          : 'no categorical column';
       throw new DesignError(`reference level '${spec.reference}' is not a level of the tested ${where}`);
     }
   }
@@ -484,7 +491,9 @@ export function buildDesign(subjects: DesignSubject[], spec: DesignSpec): Design
       const a = levels.indexOf(cs.a);
       const b = levels.indexOf(cs.b);
       if (a < 0 || b < 0) {
-        throw new DesignError(`contrast ${cs.a} − ${cs.b}: level '${a < 0 ? cs.a : cs.b}' is not in '${name}'`);
+        throw new DesignError(
+          `contrast ${cs.a} − ${cs.b}: level '${a < 0 ? cs.a : cs.b}' is not in '${name}'`,
+        );
       }
       if (a === b) throw new DesignError(`contrast ${cs.a} − ${cs.b} compares a level with itself`);
       // With treatment coding, the mean of level g is β0 + β_g (β_0 for the reference).
@@ -494,7 +503,9 @@ export function buildDesign(subjects: DesignSubject[], spec: DesignSpec): Design
       return { name: `${cs.a} - ${cs.b}`, rows: [r], pair: [cs.a, cs.b] as [string, string] };
     });
   } else {
-    contrasts = [{ name: testedIdx.length === 1 ? name : `${name} (all columns)`, rows: testedIdx.map(unit) }];
+    contrasts = [
+      { name: testedIdx.length === 1 ? name : `${name} (all columns)`, rows: testedIdx.map(unit) },
+    ];
   }
 
   let paired = false;

@@ -192,7 +192,8 @@ export function distanceRegression(
     for (const q of qz) {
       // Rows (or columns) minus their projection on q.
       const c = new Float64Array(n);
-      for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) c[j] += q[i] * e[transposed ? j * n + i : i * n + j];
+      for (let i = 0; i < n; i++)
+        for (let j = 0; j < n; j++) c[j] += q[i] * e[transposed ? j * n + i : i * n + j];
       for (let i = 0; i < n; i++)
         for (let j = 0; j < n; j++) e[transposed ? j * n + i : i * n + j] -= q[i] * c[j];
     }

@@ -45,7 +45,8 @@ export function parseTerm(text: string): string[] {
   const vars: string[] = [];
   tokens.forEach((t, i) => {
     const operand = i % 2 === 0;
-    if (operand && (t === ':' || t === '+' || t === '*')) throw new FormulaError(`term '${text}': unexpected '${t}'`);
+    if (operand && (t === ':' || t === '+' || t === '*'))
+      throw new FormulaError(`term '${text}': unexpected '${t}'`);
     if (!operand && t !== ':') throw new FormulaError(`term '${text}': expected ':' but found '${t}'`);
     if (operand && !vars.includes(t)) vars.push(t);
   });

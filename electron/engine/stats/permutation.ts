@@ -147,7 +147,10 @@ export function permutationPlan(
     basis = qx;
   } else if (ex) {
     // Rz is orthogonal to the invariant columns, and so is P Rz: only the rest of the nuisance moves.
-    const invariant = orthonormalize([columns[0], ...(options.invariantColumns ?? []).map((k) => columns[k])]).q;
+    const invariant = orthonormalize([
+      columns[0],
+      ...(options.invariantColumns ?? []).map((k) => columns[k]),
+    ]).q;
     const rest = orthonormalize([...invariant, ...qz]).q.slice(invariant.length);
     basis = [...qx, ...rest];
   } else basis = [...qx, ...qz];
@@ -173,7 +176,11 @@ export function permutationPlan(
       representative.push(i);
     }
   }
-  const scheme: PermutationScheme = ex ? `freedman-lane-${ex.scheme}` : plain ? 'label-permutation' : 'freedman-lane';
+  const scheme: PermutationScheme = ex
+    ? `freedman-lane-${ex.scheme}`
+    : plain
+      ? 'label-permutation'
+      : 'freedman-lane';
   return {
     n,
     s,

@@ -27,14 +27,14 @@ export const STATS_COLUMNS = [
   'effect_size',
   'effect_low',
   'effect_high',
+  'partial_r',
+  'partial_eta_squared',
   'n_per_group',
+  'n_blocks',
   'scheme',
   'permutation_mode',
   'permutations',
   'seed',
-  'partial_r',
-  'partial_eta_squared',
-  'n_blocks',
 ];
 
 const num = (v: number): number | null => (Number.isFinite(v) ? v : null);
@@ -67,14 +67,14 @@ export function statsTable(results: FamilyResult[]): { table: Table; warnings: s
         num(perm.pFwer[j]),
         num(r.qFdr[j]),
         ...effect,
+        num(r.partialR[j]),
+        num(r.partialEtaSquared[j]),
         nPerGroup,
+        r.blocks,
         perm.scheme,
         perm.run.mode,
         perm.run.visited,
         perm.run.seed,
-        num(r.partialR[j]),
-        num(r.partialEtaSquared[j]),
-        r.blocks,
       ]);
     });
     warnings.push(...r.warnings);
