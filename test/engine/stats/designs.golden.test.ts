@@ -10,7 +10,15 @@ import { golden } from './golden.ts';
 
 type Row = Record<string, CovariateValue>;
 interface Ref {
-  slope: { rows: Row[]; t: number; p: number; df: number; estimate: number; partial_r: number; partial_eta_squared: number };
+  slope: {
+    rows: Row[];
+    t: number;
+    p: number;
+    df: number;
+    estimate: number;
+    partial_r: number;
+    partial_eta_squared: number;
+  };
   interactions: { rows: Row[] } & Record<
     string,
     { F: number; p: number; df_num: number; df: number; partial_eta_squared: number }
@@ -86,7 +94,11 @@ describe('designs against statsmodels / scipy', () => {
     expect(fit.statistic[0]).toBeCloseTo(ref.paired.t, 10);
     expect(fit.p[0]).toBeCloseTo(ref.paired.p, 10);
     expect(fit.df2).toBe(ref.paired.df);
-    const r = testFamily(d, d.contrasts[0], family(rows, d.ids), { seed: 3, permutations: 999, bootstrap: 500 });
+    const r = testFamily(d, d.contrasts[0], family(rows, d.ids), {
+      seed: 3,
+      permutations: 999,
+      bootstrap: 500,
+    });
     expect(r.effect.kind).toBe('d-z');
     if (r.effect.kind !== 'd-z') return;
     expect(r.effect.sizes.value[0]).toBeCloseTo(ref.paired.d_z, 10);
@@ -101,7 +113,11 @@ describe('designs against statsmodels / scipy', () => {
   it('adjusted d of a 2-level effect = coefficient / √(residual mean square) of statsmodels y ~ C(group) + age', () => {
     const rows = ref.adjusted.rows;
     const d = buildDesign(asSubjects(rows), { groupColumn: 'group', covariates: ['age'] });
-    const r = testFamily(d, d.contrasts[0], family(rows, d.ids), { seed: 5, permutations: 199, bootstrap: 400 });
+    const r = testFamily(d, d.contrasts[0], family(rows, d.ids), {
+      seed: 5,
+      permutations: 199,
+      bootstrap: 400,
+    });
     expect(d.contrasts[0].name).toBe('patient - control');
     expect(r.glm.estimate[0]).toBeCloseTo(ref.adjusted.estimate, 10);
     expect(r.glm.statistic[0]).toBeCloseTo(ref.adjusted.t, 10);
@@ -111,7 +127,11 @@ describe('designs against statsmodels / scipy', () => {
     expect(r.effect.sizes.low[0]).toBeLessThan(ref.adjusted.d);
     expect(r.effect.sizes.high[0]).toBeGreaterThan(ref.adjusted.d);
     // Reproducible from the seed.
-    const again = testFamily(d, d.contrasts[0], family(rows, d.ids), { seed: 5, permutations: 199, bootstrap: 400 });
+    const again = testFamily(d, d.contrasts[0], family(rows, d.ids), {
+      seed: 5,
+      permutations: 199,
+      bootstrap: 400,
+    });
     if (again.effect.kind !== 'adjusted-d') return;
     expect(again.effect.sizes.low[0]).toBe(r.effect.sizes.low[0]);
   });
