@@ -180,8 +180,8 @@ function percentileIntervals(value: Float64Array, draws: Float64Array, reps: num
  * ch. 13) over resampling units — the exchangeability blocks when there are any, else the rows —
  * drawn with replacement within strata (the effect level of the unit, when it is constant within
  * units, so that group sizes are kept), the same resamples for every feature; the design columns
- * are kept as coded on the full sample, except the block intercepts, which are rebuilt per drawn
- * copy of a block. Resamples whose design is singular are skipped.
+ * are kept as coded on the full sample, except the block intercepts: each drawn copy of a block
+ * has its own. Resamples whose design is singular are skipped.
  */
 export function adjustedDifferenceFamily(
   columns: Float64Array[],
@@ -203,7 +203,6 @@ export function adjustedDifferenceFamily(
   const n = columns[0].length;
   const blockCols = new Set(options.blockColumns ?? []);
   const fixed = columns.map((_, k) => k).filter((k) => !blockCols.has(k));
-  const c = fixed.map((k) => contrastRow[k]);
   const units = Math.max(...options.unit) + 1;
   const rowsOf: number[][] = Array.from({ length: units }, () => []);
   for (let i = 0; i < n; i++) rowsOf[options.unit[i]].push(i);
@@ -215,39 +214,51 @@ export function adjustedDifferenceFamily(
     strata.get(s)!.push(u);
   }
 
-  /** d for every feature on the rows drawn (each unit copy with its own block intercept). */
+  /**
+   * d for every feature on the rows drawn. With block intercepts, each drawn copy of a block gets
+   * its own: by Frisch–Waugh–Lovell the other columns and y are centred within each copy instead
+   * (the intercept then drops out), which gives the same β̂ and residuals at a fraction of the cost.
+   */
+  const absorb = blockCols.size > 0;
+  const kept = absorb ? fixed.filter((k) => k !== 0) : fixed;
+  const ck = kept.map((k) => contrastRow[k]);
   const estimate = (drawn: number[], out: Float64Array, offset: number, stride: number) => {
     const rows = drawn.flatMap((u) => rowsOf[u]);
-    const cols = fixed.map((k) => Float64Array.from(rows, (i) => columns[k][i]));
-    const cc = [...c];
-    if (blockCols.size > 0) {
-      let at = 0;
-      drawn.forEach((u, copy) => {
-        const len = rowsOf[u].length;
-        if (copy > 0) {
-          const col = new Float64Array(rows.length);
-          for (let i = at; i < at + len; i++) col[i] = 1;
-          cols.push(col);
-          cc.push(0);
-        }
-        at += len;
-      });
+    const segments: Array<[number, number]> = [];
+    let at = 0;
+    for (const u of drawn) {
+      segments.push([at, at + rowsOf[u].length]);
+      at += rowsOf[u].length;
     }
+    const centre = (v: Float64Array) => {
+      if (!absorb) return v;
+      for (const [a, b] of segments) {
+        let mean = 0;
+        for (let i = a; i < b; i++) mean += v[i];
+        mean /= b - a;
+        for (let i = a; i < b; i++) v[i] -= mean;
+      }
+      return v;
+    };
+    const cols = kept.map((k) => centre(Float64Array.from(rows, (i) => columns[k][i])));
     const { q, r, dropped } = orthonormalize(cols);
-    const df = rows.length - cols.length;
+    const df = rows.length - cols.length - (absorb ? drawn.length : 0);
     for (let f = 0; f < m; f++) out[f * stride + offset] = NaN;
     if (dropped.length > 0 || df < 1) return;
-    const a = solveUpperTransposed(r, cc);
+    const a = solveUpperTransposed(r, ck);
+    const y = new Float64Array(rows.length);
     for (let f = 0; f < m; f++) {
-      const y = features[f];
+      const feature = features[f];
+      for (let t = 0; t < rows.length; t++) y[t] = feature[rows[t]];
+      centre(y);
       let yy = 0;
-      for (const i of rows) yy += y[i] * y[i];
+      for (let t = 0; t < rows.length; t++) yy += y[t] * y[t];
       let est = 0;
       let fitted = 0;
       for (let k = 0; k < q.length; k++) {
         let d = 0;
         const qk = q[k];
-        for (let t = 0; t < rows.length; t++) d += qk[t] * y[rows[t]];
+        for (let t = 0; t < rows.length; t++) d += qk[t] * y[t];
         est += a[k] * d;
         fitted += d * d;
       }

@@ -388,3 +388,47 @@ describe('model formulas', () => {
     expect(() => buildDesign(s, { effect: 'a', model: 'a', covariates: [] })).toThrow(DesignError);
   });
 });
+
+describe('adjusted d with block intercepts (more than two scans per block)', () => {
+  it('equals the contrast estimate over √(residual mean square) of the full design with block dummies', async () => {
+    const { testFamily } = await import('../../../electron/engine/stats/family.ts');
+    const rows = Array.from({ length: 6 }, (_, p) =>
+      ['pre', 'pre', 'post', 'post'].map((session, k) => ({
+        id: `sub-${p}_run-${k}`,
+        covariates: { participant_id: `sub-${p}`, session, motion: normal() },
+      })),
+    ).flat();
+    const y = rows.map((r, i) => (r.covariates.session === 'post' ? 0.7 : 0) + Math.floor(i / 4) + normal());
+    const d = buildDesign(rows, {
+      effect: 'session',
+      reference: 'pre',
+      blocks: 'participant_id',
+      covariates: ['motion'],
+    });
+    expect(d.paired).toBe(false);
+    expect(d.blockColumns).toHaveLength(5);
+    const res = testFamily(
+      d,
+      d.contrasts[0],
+      {
+        name: 'f',
+        subjects: rows.map((r) => r.id),
+        features: [{ feature: 'y', nodeOrPoint: null, values: y }],
+      },
+      { seed: 2, permutations: 99, bootstrap: 300 },
+    );
+    const fit = fitGlm(d.columns, d.contrasts[0], [y]);
+    let rss = 0;
+    y.forEach((v, i) => {
+      let f = 0;
+      d.columns.forEach((c, k) => (f += fit.beta[0][k] * c[i]));
+      rss += (v - f) ** 2;
+    });
+    const expected = fit.estimate[0] / Math.sqrt(rss / fit.df2);
+    expect(res.effect.kind).toBe('adjusted-d');
+    if (res.effect.kind !== 'adjusted-d') return;
+    expect(res.effect.sizes.value[0]).toBeCloseTo(expected, 10);
+    expect(res.effect.sizes.low[0]).toBeLessThan(expected);
+    expect(res.effect.sizes.high[0]).toBeGreaterThan(expected);
+  });
+});
