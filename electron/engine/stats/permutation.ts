@@ -22,6 +22,16 @@
  * the residuals) and p = #{T* ≥ T} / N, identity included; otherwise p = (1 + #{T* ≥ T}) / (1 + B)
  * over B seeded random permutations.
  *
+ * Exchangeability blocks (design.ts; Winkler et al. 2014, 2015 NeuroImage 123): the permutations
+ * are restricted to the design's set — within blocks, whole blocks, or both (relabel.ts
+ * forEachBlockPermutation) — and the scheme is reported as freedman-lane-within-blocks,
+ * -whole-blocks or -within-and-whole-blocks. Every such permutation maps the span of the intercept
+ * and block intercepts onto itself, and Rz is orthogonal to it, so that part of the nuisance basis
+ * need not be permuted (as for the intercept in the plain scheme). Within blocks of two rows with
+ * the block intercepts in the nuisance, swapping a block's rows flips the sign of its residual
+ * difference: the test is the sign-flip test of the within-block differences. Designs without
+ * blocks take exactly the path they took before blocks existed.
+ *
  * FWER: each permutation's maximum over the family of |t| (or F) forms the null distribution of
  * the maximum (Westfall & Young 1993; Nichols & Holmes 2002, Hum. Brain Mapp. 15).
  *
