@@ -1,8 +1,8 @@
 /**
  * Calibration and power of Loopwise's group tests (electron/engine/stats), as a report.
  *
- *   npm run validate:stats              # full run: about 1 minute on one core (see README.md)
- *   npm run validate:stats -- --quick   # fewer cohorts: about 15 seconds
+ *   npm run validate:stats              # full run: about 3.5 minutes on one core (see README.md)
+ *   npm run validate:stats -- --quick   # fewer cohorts: about 35 seconds
  *   npm run validate:stats -- --seed 5  # another master seed
  *   npm run validate:stats -- --cohorts 10000  # more null cohorts per setting (part 1)
  *
