@@ -432,3 +432,69 @@ describe('adjusted d with block intercepts (more than two scans per block)', () 
     expect(res.effect.sizes.high[0]).toBeGreaterThan(expected);
   });
 });
+
+describe('design under blocks', () => {
+  const rows = Array.from({ length: 6 }, (_, p) =>
+    ['pre', 'post'].map((session) => ({
+      id: `sub-${p}_ses-${session}`,
+      covariates: {
+        participant_id: p === 5 && session === 'post' ? null : `sub-${p}`,
+        session,
+        age: 20 + 3 * p,
+        group: p % 2 ? 'b' : 'a',
+        motion: (p * 7 + (session === 'pre' ? 1 : 4)) % 5,
+      },
+    })),
+  ).flat();
+
+  it('leaves out rows without a block, absorbs between-block covariates, and picks the scheme per effect', () => {
+    const w = buildDesign(rows, {
+      effect: 'session',
+      reference: 'pre',
+      blocks: 'participant_id',
+      covariates: ['age', 'motion'],
+    });
+    expect(w.excluded).toEqual([{ id: 'sub-5_ses-post', reason: "missing 'participant_id'" }]);
+    expect(w.exchangeability?.scheme).toBe('within-blocks');
+    expect(w.columnNames.slice(0, 3)).toEqual(['(intercept)', 'session[post]', 'motion']);
+    expect(w.columnNames).not.toContain('age');
+    expect(w.notes).toEqual([
+      "'age' is constant within the blocks of 'participant_id' and absorbed by the block intercepts",
+    ]);
+    // sub-5 keeps one row: a block of one, fitted exactly by its intercept.
+    expect(w.paired).toBe(true);
+    const numeric = buildDesign(rows, { effect: 'age', blocks: 'participant_id', covariates: [] });
+    expect(numeric.exchangeability?.scheme).toBe('whole-blocks');
+    expect(numeric.effect.kind).toBe('numeric');
+    expect(numeric.notes[0]).toMatch(
+      /1 block\(s\) of 'participant_id' have a size or structure no other block shares/,
+    );
+  });
+
+  it('distance regression under within-block permutation matches the per-feature test on 1-D Euclidean distances', () => {
+    const d = buildDesign(rows, {
+      effect: 'session',
+      reference: 'pre',
+      blocks: 'participant_id',
+      covariates: ['motion'],
+    });
+    const y = d.ids.map((_, i) => Math.sin(3.7 * i) + (i % 2) * 0.5);
+    const n = y.length;
+    const one = {
+      n,
+      values: Float64Array.from({ length: n * n }, (_, k) => Math.abs(y[Math.floor(k / n)] - y[k % n])),
+    };
+    const opts = {
+      seed: 4,
+      permutations: 999,
+      exchangeability: d.exchangeability,
+      invariantColumns: d.blockColumns,
+    };
+    const reg = distanceRegression(one, d.columns, d.contrasts[0], opts);
+    const uni = permutationTest(d.columns, d.contrasts[0], [y], opts);
+    expect(reg.scheme).toBe('freedman-lane-within-blocks');
+    expect(reg.run.mode).toBe('exact');
+    expect(reg.statistic).toBeCloseTo(uni.statistic[0] ** 2, 9);
+    expect(reg.p).toBe(uni.pUncorrected[0]);
+  });
+});
