@@ -368,8 +368,10 @@ export function buildDesign(subjects: DesignSubject[], spec: DesignSpec): Design
         );
       }
     }
-    // Within-block order: by the values of the variables that vary within blocks.
-    const keyOf = (i: number) => withinVars.map((v) => coded.get(v)!.text[i]).join('\u0000');
+    // Within-block order and block structure: by the values of the categorical variables that vary
+    // within blocks (e.g. session); numeric ones (e.g. motion) are data, not structure.
+    const layout = withinVars.filter((v) => coded.get(v)!.kind === 'categorical');
+    const keyOf = (i: number) => layout.map((v) => coded.get(v)!.text[i]).join('\u0000');
     const members: number[][] = blockNames.map(() => []);
     for (let i = 0; i < n; i++) members[blockIndex[i]].push(i);
     for (const m of members) m.sort((a, b) => collator.compare(keyOf(a), keyOf(b)) || a - b);
@@ -389,7 +391,7 @@ export function buildDesign(subjects: DesignSubject[], spec: DesignSpec): Design
         const detail =
           other >= 0
             ? `'${blockNames[0]}' has ${a} row(s), '${blockNames[other]}' has ${members[other].length}`
-            : `no two blocks have the same ${withinVars.map((v) => `'${v}'`).join(', ')} values`;
+            : `no two blocks have the same ${layout.map((v) => `'${v}'`).join(', ')} values`;
         throw new DesignError(
           `the tested term '${termName(tested)}' is constant within the blocks of '${blockColumn}', so whole blocks must be exchanged, but no two blocks have the same size and structure (${detail})`,
         );

@@ -498,3 +498,24 @@ describe('design under blocks', () => {
     expect(reg.p).toBe(uni.pUncorrected[0]);
   });
 });
+
+describe('whole-block structure', () => {
+  it('is set by categorical within-block columns (session), not by numeric ones (motion)', () => {
+    const rows = Array.from({ length: 6 }, (_, p) =>
+      ['pre', 'post'].map((session, k) => ({
+        id: `sub-${p}_ses-${session}`,
+        covariates: { participant_id: `sub-${p}`, session, group: p % 2 ? 'b' : 'a', motion: p + k / 10 },
+      })),
+    ).flat();
+    const d = buildDesign(rows, {
+      groupColumn: 'group',
+      blocks: 'participant_id',
+      covariates: ['session', 'motion'],
+    });
+    expect(d.exchangeability?.scheme).toBe('whole-blocks');
+    expect(new Set(d.exchangeability!.classes).size).toBe(1);
+    // Rows of every block in session order (post before pre), so that row k of a block meets row k of another.
+    for (const m of d.exchangeability!.members)
+      expect(m.map((i) => rows[i].covariates.session)).toEqual(['post', 'pre']);
+  });
+});
