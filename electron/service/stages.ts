@@ -376,9 +376,16 @@ export function cohortStages(): RunHooks {
       const diagramTests = diagramTestsTable(entries);
       await ctx.writeTable('diagram-tests', diagramTests);
       if (embedding) {
+        // participant_id, then session where the cohort has sessions (the scan rows' shared layout).
+        const withSessions = (ctx.report.sessions?.length ?? 0) > 0;
+        const who = (id: string): Array<string | null> => {
+          const e = entryOf(ctx, id);
+          const participant = e?.participant ?? id;
+          return withSessions ? [participant, e?.session ?? null] : [participant];
+        };
         await ctx.writeTable('embedding', {
-          columns: ['participant_id', 'group', 'method', 'x', 'y'],
-          rows: embedding.map((e) => [e.subject, e.group, e.method, e.x, e.y]),
+          columns: ['participant_id', ...(withSessions ? ['session'] : []), 'group', 'method', 'x', 'y'],
+          rows: embedding.map((e) => [...who(e.subject), e.group, e.method, e.x, e.y]),
         });
       }
       if (warnings.length > 0) await ctx.writeJson('stats-warnings.json', warnings);
