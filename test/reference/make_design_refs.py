@@ -4,6 +4,7 @@ glm.ts, family.ts): slopes, interactions, paired contrasts and the effect sizes 
 
 Run with Debian's interpreter, which carries the reference libraries:
     /usr/bin/python3 test/reference/make_design_refs.py
+then   Rscript test/reference/make_design_refs.R   (the same slope and interactions with base R)
 Writes test/reference/goldens/stats/designs.json (the data and the expected values). Tools and
 versions are recorded in its "tools" field: statsmodels OLS (t_test, compare_f_test), scipy
 (ttest_rel), numpy. All data are simulated here from fixed numpy seeds.
@@ -131,6 +132,9 @@ out = {
     "paired": paired_ref,
     "adjusted": adjusted_ref,
 }
+# The same data as CSV for the R cross-check (make_design_refs.R).
+slope.to_csv(os.path.join(OUT, "designs_slope.csv"), index=False, float_format="%.17g")
+inter.to_csv(os.path.join(OUT, "designs_interactions.csv"), index=False, float_format="%.17g")
 with open(os.path.join(OUT, "designs.json"), "w") as f:
     json.dump(out, f, indent=1, allow_nan=False)
     f.write("\n")

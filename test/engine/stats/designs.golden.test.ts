@@ -136,3 +136,34 @@ describe('designs against statsmodels / scipy', () => {
     expect(again.effect.sizes.low[0]).toBe(r.effect.sizes.low[0]);
   });
 });
+
+describe('the same slope and interactions against base R (make_design_refs.R: lm, anova)', () => {
+  const r = golden<{
+    slope: { t: number; p: number; df: number };
+    interactions: Record<string, { F: number; p: number; df_num: number; df: number }>;
+  }>('designs_r.json');
+
+  it('slope t and p = R lm(y ~ age + sex)', () => {
+    const d = buildDesign(asSubjects(ref.slope.rows), { effect: 'age', covariates: ['sex'] });
+    const fit = fitGlm(d.columns, d.contrasts[0], [ref.slope.rows.map((x) => x.y as number)]);
+    expect(fit.statistic[0]).toBeCloseTo(r.slope.t, 10);
+    expect(fit.p[0]).toBeCloseTo(r.slope.p, 10);
+    expect(fit.df2).toBe(r.slope.df);
+  });
+
+  for (const [term, model, covariates] of [
+    ['arm:sex', 'arm*sex', []],
+    ['arm:dose', 'arm*dose + age', []],
+    ['dose:age', 'dose*age', ['sex']],
+  ] as Array<[string, string, string[]]>) {
+    it(`interaction ${term}: F, p, df = R anova(reduced, full)`, () => {
+      const rows = ref.interactions.rows;
+      const d = buildDesign(asSubjects(rows), { model, test: term, covariates });
+      const fit = fitGlm(d.columns, d.contrasts[0], [rows.map((x) => x.y as number)]);
+      const f = fit.kind === 't' ? fit.statistic[0] ** 2 : fit.statistic[0];
+      expect(f).toBeCloseTo(r.interactions[term].F, 9);
+      expect(fit.p[0]).toBeCloseTo(r.interactions[term].p, 9);
+      expect([fit.df1, fit.df2]).toEqual([r.interactions[term].df_num, r.interactions[term].df]);
+    });
+  }
+});
