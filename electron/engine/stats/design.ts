@@ -405,6 +405,21 @@ export function buildDesign(subjects: DesignSubject[], spec: DesignSpec): Design
     exchangeability = { scheme, column: blockColumn, block: blockIndex, names: blockNames, members, classes };
   }
 
+  // Marginality (Nelder 1977, "A reformulation of linear models", J. R. Stat. Soc. A 140): an
+  // interaction without its lower-order terms is coded against the reference levels and does not
+  // test the usual interaction; say so rather than guess another coding.
+  for (const t of terms) {
+    if (t.length < 2) continue;
+    const lower = t
+      .map((_, k) => t.filter((__, j) => j !== k))
+      .filter((sub) => !terms.some((u) => sameTerm(u, sub)));
+    if (lower.length > 0) {
+      notes.push(
+        `model term '${termName(t)}' lacks its lower-order term(s) ${lower.map((x) => `'${termName(x)}'`).join(', ')}: its columns are products of treatment-coded columns and its test is not the usual interaction test`,
+      );
+    }
+  }
+
   // Columns: intercept, the kept terms in order, then block intercepts.
   const columnNames: string[] = ['(intercept)'];
   const columns: Float64Array[] = [new Float64Array(n).fill(1)];

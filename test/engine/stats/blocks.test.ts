@@ -519,3 +519,17 @@ describe('whole-block structure', () => {
       expect(m.map((i) => rows[i].covariates.session)).toEqual(['post', 'pre']);
   });
 });
+
+describe('marginality', () => {
+  it('notes an interaction without its lower-order terms', () => {
+    const s = [0, 1, 2, 3, 4, 5, 6, 7].map((i) => ({
+      id: `s${i}`,
+      covariates: { a: i % 2 ? 'x' : 'y', b: i % 4 < 2 ? 'u' : 'v', c: i * 1.5 },
+    }));
+    const d = buildDesign(s, { model: 'a + a:b', test: 'a:b', covariates: [] });
+    expect(d.notes).toEqual([
+      "model term 'a:b' lacks its lower-order term(s) 'b': its columns are products of treatment-coded columns and its test is not the usual interaction test",
+    ]);
+    expect(buildDesign(s, { model: 'a*b', test: 'a:b', covariates: [] }).notes).toEqual([]);
+  });
+});
