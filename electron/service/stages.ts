@@ -87,7 +87,7 @@ export function cohortStages(): RunHooks {
     return entries.get(id);
   };
   const groupOf = (ctx: StageContext, id: string): string | null => {
-    const col = ctx.stats.groupColumn;
+    const col = groupingColumn(ctx);
     if (!col) return null;
     const v = entryOf(ctx, id)?.covariates[col];
     return v === null || v === undefined ? null : String(v);
@@ -95,7 +95,7 @@ export function cohortStages(): RunHooks {
 
   return {
     async groupFiltrations(ctx) {
-      const col = ctx.stats.groupColumn;
+      const col = groupingColumn(ctx);
       if (!col) return {};
       const settings = ctx.run.settings;
       const groups = new Map<string, SubjectEntry[]>();
@@ -392,6 +392,18 @@ export function cohortStages(): RunHooks {
       return { stats, diagramTests, embedding };
     },
   };
+}
+
+/** The column scans are grouped by (group curves, group filtrations): --group, or an --effect holding text. */
+function groupingColumn(ctx: StageContext): string | null {
+  const { groupColumn, effect } = ctx.stats;
+  if (groupColumn) return groupColumn;
+  if (!effect) return null;
+  const categorical = ctx.report.subjects.some((s) => {
+    const v = s.covariates[effect];
+    return v !== null && v !== undefined && typeof v !== 'number';
+  });
+  return categorical ? effect : null;
 }
 
 /** The subject's distances as the filtration saw them (regions dropped, transform applied), or null when unreadable. */

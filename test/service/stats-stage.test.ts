@@ -92,6 +92,17 @@ describe('statistics stage', () => {
     expect(new Set(tests.map((t) => t.test))).toEqual(new Set(['distance-regression']));
   }, 120_000);
 
+  it('a categorical --effect groups the curves like --group, and tests other − reference', async () => {
+    const { summary, read } = await run('effect', { effect: 'group', reference: 'patient' });
+    expect(summary.failures).toEqual([]);
+    expect(new Set(read('group-curves.tsv').map((r) => r.group))).toEqual(new Set(['control', 'patient']));
+    expect(new Set(read('stats.tsv').map((r) => r.contrast))).toEqual(new Set(['control - patient']));
+    // No covariates, no blocks: the joint loss runs beside PERMANOVA.
+    expect(new Set(read('diagram-tests.tsv').map((t) => t.test))).toEqual(
+      new Set(['joint-loss', 'permanova']),
+    );
+  }, 120_000);
+
   it('a design error fails the statistics stage with its message; the features stay', async () => {
     const { summary, outDir } = await run('bad', { groupColumn: 'nope' });
     expect(summary.failures).toEqual([{ subject: '(statistics)', reason: "unknown column 'nope'" }]);
