@@ -9,6 +9,7 @@
  * the field. Browser-safe: no node:* imports (the renderer bundles this module).
  */
 import type { AnalysisSettings, ColumnInfo, OpenCohortRequest, StatsSettings } from './api.ts';
+import { FormulaError, expandFormula, parseTerm, sameTerm, termName } from './engine/stats/formula.ts';
 import { DEFAULT_TRANSFORM, TRANSFORMS_FOR } from './engine/transform.ts';
 import type { InputKind, TransformName } from './engine/transform.ts';
 
@@ -438,13 +439,20 @@ export function statisticsRequested(s: Pick<StatsSettings, 'groupColumn' | 'effe
   return Boolean(s.groupColumn || s.effect || s.model);
 }
 
-/** The column names a model formula mentions ('+', ':', '*', parentheses and spaces separate them). */
+/** The terms of a model formula, read by the statistics engine's own parser; null when it cannot be read. */
+function modelTerms(formula: string): string[][] | null {
+  try {
+    return expandFormula(formula);
+  } catch {
+    return null;
+  }
+}
+
+/** The column names a model formula mentions, in order of first appearance (none when it cannot be read). */
 export function formulaColumns(formula: string): string[] {
-  const names = formula
-    .split(/[+:*()]/)
-    .map((t) => t.trim())
-    .filter((t) => t !== '' && t !== '1');
-  return [...new Set(names)];
+  const names: string[] = [];
+  for (const term of modelTerms(formula) ?? []) for (const v of term) if (!names.includes(v)) names.push(v);
+  return names;
 }
 
 /** Problems with statistics settings (any JSON value), before the cohort's columns are known. */
@@ -462,16 +470,14 @@ export function validateStatsSettings(v: unknown): Problem[] {
     else if (v.model.trim() === '')
       c.add('stats.model', "is empty: give a formula such as 'group*session + age'");
   }
+  let terms: string[][] | null = null;
   if (typeof v.model === 'string' && v.model.trim() !== '' && v.model.length <= LIMITS.formula) {
-    if (/[^\w.\-+:*()\s]/.test(v.model) || formulaColumns(v.model).length === 0)
-      c.add('stats.model', `is not a formula of columns joined by +, : and *: ${show(v.model)}`);
-    else if (/[\w.]\s*\(/.test(v.model))
-      c.add(
-        'stats.model',
-        `takes columns joined by +, : and * (and parentheses), not functions: ${show(v.model)}`,
-      );
-    else if (formulaColumns(v.model).some((t) => /\s/.test(t)))
-      c.add('stats.model', `needs +, : or * between column names: ${show(v.model)}`);
+    try {
+      terms = expandFormula(v.model);
+    } catch (e) {
+      // The engine's parser: the message names the token at fault.
+      c.add('stats.model', e instanceof FormulaError ? e.message : String(e));
+    }
   }
   const designs = (['groupColumn', 'effect', 'model'] as const).filter((f) => typeof v[f] === 'string');
   if (designs.length > 1)
@@ -481,11 +487,18 @@ export function validateStatsSettings(v: unknown): Problem[] {
     );
   if (typeof v.test === 'string' && typeof v.model !== 'string')
     c.add('stats.test', 'applies only with --model');
-  if (typeof v.test === 'string' && typeof v.model === 'string') {
-    const inModel = new Set(formulaColumns(v.model));
-    const missing = formulaColumns(v.test).filter((t) => !inModel.has(t));
-    if (missing.length > 0)
-      c.add('stats.test', `names ${missing.join(', ')}, which the model ${show(v.model)} does not`);
+  if (typeof v.test === 'string' && v.test.trim() !== '' && terms) {
+    let term: string[] | null = null;
+    try {
+      term = parseTerm(v.test);
+    } catch (e) {
+      c.add('stats.test', e instanceof FormulaError ? e.message : String(e));
+    }
+    if (term && !terms.some((t) => sameTerm(t, term)))
+      c.add(
+        'stats.test',
+        `'${v.test}' is not a term of the model '${v.model as string}' (its terms: ${terms.map(termName).join(', ')})`,
+      );
   }
   if (typeof v.reference === 'string' && designs.length === 0)
     c.add('stats.reference', 'applies only with --group, --effect or --model');

@@ -196,7 +196,7 @@ export async function openCohort(
   if (participantsFile) {
     const pf = rel(participantsFile);
     try {
-      const t = await readStringTable(participantsFile);
+      const t = await readStringTable(participantsFile, { findings, rel: pf, table: 'participants' });
       const idCol = t.header.findIndex((h) => h.toLowerCase() === 'participant_id');
       if (idCol < 0) {
         add({
