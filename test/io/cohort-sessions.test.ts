@@ -12,6 +12,7 @@ import { factorModel, sampleCorrelation } from '../../electron/engine/generator/
 import { createRng } from '../../electron/engine/random.ts';
 import type { SquareMatrix } from '../../electron/engine/types.ts';
 import { loadSubjectMatrix, openCohort } from '../../electron/io/cohort.ts';
+import { createLoopwiseService } from '../../electron/service/service.ts';
 
 const temps: string[] = [];
 afterAll(() => temps.forEach((d) => rmSync(d, { recursive: true, force: true })));
@@ -322,6 +323,24 @@ describe('files outside the chosen folders are refused and never read', () => {
     const allowed = await openCohort({ dir }, { allowedRoots: [outside] });
     expect(allowed.findings.some((f) => f.code === 'outside-folder')).toBe(false);
     expect(allowed.subjects.find((s) => s.id === 'sub-02_ses-1')!.covariates.SECRETSES).toBe(0.13579);
+  });
+
+  it("the service passes a door's roots as allowed roots", async () => {
+    const { dir, outside } = setup();
+    write(dir, 'sub-01_conn.tsv', tsv(matrix(1)));
+    symlinkSync(join(outside, 'secret_conn.tsv'), join(dir, 'sub-02_conn.tsv'));
+    const closed = createLoopwiseService();
+    const open = createLoopwiseService({ allowedRoots: () => [outside] });
+    try {
+      const refused = await closed.openCohort({ dir });
+      expect(refused.subjects.map((s) => s.usable)).toEqual([true, false]);
+      clean(refused);
+      const admitted = await open.openCohort({ dir });
+      expect(admitted.findings.some((f) => f.code === 'outside-folder')).toBe(false);
+    } finally {
+      await closed.close();
+      await open.close();
+    }
   });
 
   it('a file-column path leading out of the folder', async () => {
