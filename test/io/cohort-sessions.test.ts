@@ -3,7 +3,7 @@
 // flat folder. Layout and entity rules: the BIDS specification, "Entities" and "Sessions file"
 // (common practice). The sessions join is checked against pandas.merge (Debian python3-pandas).
 import { spawnSync } from 'node:child_process';
-import { mkdirSync, mkdtempSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, readFileSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
@@ -12,6 +12,7 @@ import { factorModel, sampleCorrelation } from '../../electron/engine/generator/
 import { createRng } from '../../electron/engine/random.ts';
 import type { SquareMatrix } from '../../electron/engine/types.ts';
 import { loadSubjectMatrix, openCohort } from '../../electron/io/cohort.ts';
+import { main } from '../../electron/cli.ts';
 import { createLoopwiseService } from '../../electron/service/service.ts';
 
 const temps: string[] = [];
@@ -390,4 +391,64 @@ describe('participants.tsv and participants.csv both present', () => {
     // Neither table is a matrix.
     expect(report.subjects).toHaveLength(1);
   });
+});
+
+describe('the tables of a run on a cohort with sessions', () => {
+  it('put session right after participant_id, which holds the participant', async () => {
+    const dir = tempDir();
+    write(
+      dir,
+      'participants.tsv',
+      'participant_id\tgroup\n' +
+        [1, 2, 3, 4, 5, 6].map((k) => `sub-0${k}\t${k % 2 ? 'a' : 'b'}`).join('\n') +
+        '\n',
+    );
+    write(
+      dir,
+      'nodes.tsv',
+      'label\tnetwork\n' +
+        ['a', 'b', 'c', 'd', 'e', 'f'].map((l, i) => `${l}\t${i < 3 ? 'x' : 'y'}`).join('\n') +
+        '\n',
+    );
+    for (let k = 1; k <= 6; k++)
+      for (const [s, ses] of ['pre', 'post'].entries()) {
+        write(dir, `sub-0${k}/ses-${ses}/sub-0${k}_ses-${ses}_conn.tsv`, tsv(matrix(k * 10 + s)));
+        write(dir, `sub-0${k}/sub-0${k}_sessions.tsv`, 'session_id\tfd_mean\nses-pre\t0.1\nses-post\t0.2\n');
+      }
+    write(dir, 'participants.tsv', readFileSync(join(dir, 'participants.tsv'), 'utf8') + 'sub-07\ta\n');
+    const out = join(tempDir(), 'out');
+    let err = '';
+    const code = await main(['analyze', dir, '--out', out, '--workers', '1'], {
+      out: () => {},
+      err: (t) => (err += t),
+    });
+    expect(code, err).toBe(0);
+    const read = (f: string): string[][] =>
+      readFileSync(join(out, f), 'utf8')
+        .trimEnd()
+        .split('\n')
+        .map((l) => l.split('\t'));
+    for (const f of [
+      'features.tsv',
+      'nodes.tsv',
+      'networks.tsv',
+      'curves.tsv',
+      'intervals.tsv',
+      'subjects.tsv',
+    ]) {
+      const [head, ...rows] = read(f);
+      expect(head.slice(0, 2), f).toEqual(['participant_id', 'session']);
+      const scans = new Set(rows.map((r) => `${r[0]}|${r[1]}`));
+      for (const k of [1, 2, 3, 4, 5, 6])
+        for (const ses of ['pre', 'post'])
+          expect(scans.has(`sub-0${k}|${ses}`), `${f} sub-0${k} ${ses}`).toBe(true);
+    }
+    const [fhead, ...features] = read('features.tsv');
+    expect(features).toHaveLength(12);
+    expect(fhead.slice(2, 4)).toEqual(['group', 'fd_mean']);
+    expect(features.find((r) => r[0] === 'sub-02' && r[1] === 'post')!.slice(2, 4)).toEqual(['b', '0.2']);
+    // The participant without any scan is listed, without a session.
+    const [, ...subjects] = read('subjects.tsv');
+    expect(subjects.find((r) => r[0] === 'sub-07')!.slice(1, 3)).toEqual(['n/a', 'excluded']);
+  }, 120_000);
 });
