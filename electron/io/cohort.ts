@@ -780,6 +780,23 @@ export async function openCohort(
   const labels = [...new Set(pending.map((p) => p.entry.session).filter((s): s is string => s !== null))];
   const sessions = labels.length > 0 ? labels.sort(naturalOrder.compare) : null;
   if (sessions) {
+    const seen = new Map<string, Set<string | null>>();
+    for (const p of pending) {
+      if (!seen.has(p.entry.participant)) seen.set(p.entry.participant, new Set());
+      seen.get(p.entry.participant)!.add(p.entry.session);
+    }
+    for (const [participant, theirs] of seen) {
+      const missing = sessions.filter((s) => !theirs.has(s));
+      if (missing.length > 0 && missing.length < sessions.length) {
+        add({
+          severity: 'warning',
+          code: 'missing-session',
+          file: null,
+          subject: participant,
+          message: `${participant} has no scan for session${missing.length > 1 ? 's' : ''} ${missing.join(', ')} (the cohort has ${sessions.join(', ')})`,
+        });
+      }
+    }
     for (const p of pending) {
       if (p.entry.session === null) {
         add({

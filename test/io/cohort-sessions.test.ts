@@ -92,6 +92,10 @@ describe('a nested BIDS tree with sessions (103 scans, no node table)', () => {
     expect(new Set(report.subjects.map((x) => x.id)).size).toBe(103);
     for (const x of report.subjects) expect(x.id).toBe(`${x.participant}_ses-${x.session}`);
     expect(report.n).toBe(6);
+    // A participant scanned once is flagged, not excluded.
+    expect(
+      report.findings.filter((f) => f.code === 'missing-session').map((f) => [f.subject, f.message]),
+    ).toEqual([['sub-52', 'sub-52 has no scan for session post (the cohort has post, pre)']]);
     // A participant with two sessions is two scans, not an ambiguity.
     expect(report.findings.some((f) => f.code === 'several-matrices')).toBe(false);
   });
