@@ -361,17 +361,16 @@ function bySession(files: string[], rel: (p: string) => string): Array<[string |
   );
 }
 
-/** Matching with a participants table: by file column, by a stack, or by the id in the path. */
-async function matchWithTable(
-  scope: Scope,
-  table: ParticipantsTable,
-  files: string[],
-  stack: { file: string; data: ArrayFile } | null,
-  scans: Scans,
-): Promise<void> {
-  const { root, rel, add } = scope;
+/** A participants table's ids: their rows, with empty ids and ids without 'sub-' reported. */
+interface TableIds {
+  pf: string;
+  ids: string[];
+  rowsOf: Map<string, number[]>;
+}
+
+function tableIds(scope: Scope, table: ParticipantsTable): TableIds {
+  const { rel, add } = scope;
   const pf = rel(table.file);
-  // Ids, their rows, duplicates and empty ids.
   const rowsOf = new Map<string, number[]>();
   table.ids.forEach((id, k) => {
     if (id === '' || isMissing(id)) {
@@ -399,122 +398,172 @@ async function matchWithTable(
       });
     }
   }
-  const duplicates = new Set(ids.filter((id) => rowsOf.get(id)!.length > 1));
-  const matched = new Set<string>();
+  return { pf, ids, rowsOf };
+}
 
-  if (table.fileCells) {
-    for (const id of ids) {
-      const k = rowsOf.get(id)![0];
-      const cellText = table.fileCells[k];
-      if (isMissing(cellText)) {
-        add({
-          severity: 'error',
-          code: 'no-matrix',
-          file: pf,
-          subject: id,
-          message: `${id}: no file named in row ${k + 2}`,
-        });
-        continue;
-      }
-      const file = resolve(root, cellText);
-      const place = await scope.conf.place(file);
-      if (place === 'missing' || !(await exists(file))) {
-        add({
-          severity: 'error',
-          code: 'no-matrix',
-          file: pf,
-          subject: id,
-          message: `${id}: row ${k + 2} names '${cellText}', which does not exist`,
-        });
-        continue;
-      }
-      if (place === 'outside') {
-        add(outsideFinding(cellText, id, `row ${k + 2} of ${pf} names`));
-        continue;
-      }
-      matched.add(file);
-      scans.add(id, sessionOf(rel(file)), { file }, table.covariates[k]);
-    }
-  } else if (stack) {
-    const { file, data } = stack;
-    const count = data.kind === 'stack' ? data.count : 0;
-    if (count !== ids.length) {
+/** Each participant's file named in its row (relative to the cohort folder, confined to it). Returns the files matched. */
+async function matchByFileColumn(
+  scope: Scope,
+  table: ParticipantsTable,
+  { pf, ids, rowsOf }: TableIds,
+  scans: Scans,
+): Promise<Set<string>> {
+  const { root, rel, add } = scope;
+  const fileCells = table.fileCells!;
+  const matched = new Set<string>();
+  for (const id of ids) {
+    const k = rowsOf.get(id)![0];
+    const cellText = fileCells[k];
+    if (isMissing(cellText)) {
       add({
-        severity: 'warning',
-        code: 'stack-count',
-        file: rel(file),
-        subject: null,
-        message: `the stack holds ${count} matrices but ${pf} lists ${ids.length} participants; matched in order, check that the order is the same`,
+        severity: 'error',
+        code: 'no-matrix',
+        file: pf,
+        subject: id,
+        message: `${id}: no file named in row ${k + 2}`,
       });
+      continue;
     }
-    ids.forEach((id, s) => {
-      if (s >= count) {
-        add({
-          severity: 'error',
-          code: 'no-matrix',
-          file: pf,
-          subject: id,
-          message: `${id}: the stack has no matrix ${s + 1}`,
-        });
-        return;
-      }
-      const k = rowsOf.get(id)![0];
-      scans.add(
-        id,
-        null,
-        { file, stackIndex: s, ...(data.variable ? { variable: data.variable } : {}) },
-        table.covariates[k],
-      );
-    });
-    for (let s = ids.length; s < count; s++) {
+    const file = resolve(root, cellText);
+    const place = await scope.conf.place(file);
+    if (place === 'missing' || !(await exists(file))) {
       add({
-        severity: 'warning',
-        code: 'no-participant',
-        file: rel(file),
-        subject: null,
-        message: `stack matrix ${s + 1} has no participant (only ${ids.length} in ${pf}); not analysed`,
+        severity: 'error',
+        code: 'no-matrix',
+        file: pf,
+        subject: id,
+        message: `${id}: row ${k + 2} names '${cellText}', which does not exist`,
       });
+      continue;
+    }
+    if (place === 'outside') {
+      add(outsideFinding(cellText, id, `row ${k + 2} of ${pf} names`));
+      continue;
     }
     matched.add(file);
-  } else {
-    // Index the sub-<label> tokens of every path, then match ids; ids without the prefix by scanning.
-    const byToken = new Map<string, string[]>();
-    for (const f of files) {
-      for (const token of participantTokens(rel(f))) byToken.set(token, [...(byToken.get(token) ?? []), f]);
+    scans.add(id, sessionOf(rel(file)), { file }, table.covariates[k]);
+  }
+  return matched;
+}
+
+/** The participants in table order, matrix by matrix of the one stack file. */
+function matchStack(
+  scope: Scope,
+  table: ParticipantsTable,
+  { pf, ids, rowsOf }: TableIds,
+  stack: { file: string; data: ArrayFile },
+  scans: Scans,
+): void {
+  const { rel, add } = scope;
+  const { file, data } = stack;
+  const count = data.kind === 'stack' ? data.count : 0;
+  if (count !== ids.length) {
+    add({
+      severity: 'warning',
+      code: 'stack-count',
+      file: rel(file),
+      subject: null,
+      message: `the stack holds ${count} matrices but ${pf} lists ${ids.length} participants; matched in order, check that the order is the same`,
+    });
+  }
+  ids.forEach((id, s) => {
+    if (s >= count) {
+      add({
+        severity: 'error',
+        code: 'no-matrix',
+        file: pf,
+        subject: id,
+        message: `${id}: the stack has no matrix ${s + 1}`,
+      });
+      return;
     }
-    for (const id of ids) {
-      let hits = byToken.get(id.startsWith('sub-') ? id : `sub-${id}`) ?? [];
-      if (hits.length === 0 && !id.startsWith('sub-')) {
-        const re = tokenRe(id);
-        hits = files.filter((f) => re.test(nfc(rel(f))));
-      }
-      const k = rowsOf.get(id)![0];
-      if (hits.length === 0) {
+    const k = rowsOf.get(id)![0];
+    scans.add(
+      id,
+      null,
+      { file, stackIndex: s, ...(data.variable ? { variable: data.variable } : {}) },
+      table.covariates[k],
+    );
+  });
+  for (let s = ids.length; s < count; s++) {
+    add({
+      severity: 'warning',
+      code: 'no-participant',
+      file: rel(file),
+      subject: null,
+      message: `stack matrix ${s + 1} has no participant (only ${ids.length} in ${pf}); not analysed`,
+    });
+  }
+}
+
+/** Each participant's files by its id as a token of their paths, one scan per session. Returns the files matched. */
+function matchByName(
+  scope: Scope,
+  table: ParticipantsTable,
+  { pf, ids, rowsOf }: TableIds,
+  files: string[],
+  scans: Scans,
+): Set<string> {
+  const { rel, add } = scope;
+  const matched = new Set<string>();
+  // Index the sub-<label> tokens of every path, then match ids; ids without the prefix by scanning.
+  const byToken = new Map<string, string[]>();
+  for (const f of files) {
+    for (const token of participantTokens(rel(f))) byToken.set(token, [...(byToken.get(token) ?? []), f]);
+  }
+  for (const id of ids) {
+    let hits = byToken.get(id.startsWith('sub-') ? id : `sub-${id}`) ?? [];
+    if (hits.length === 0 && !id.startsWith('sub-')) {
+      const re = tokenRe(id);
+      hits = files.filter((f) => re.test(nfc(rel(f))));
+    }
+    const k = rowsOf.get(id)![0];
+    if (hits.length === 0) {
+      add({
+        severity: 'error',
+        code: 'no-matrix',
+        file: pf,
+        subject: id,
+        message: `${id}: no matrix file with '${id}' in its name`,
+      });
+      continue;
+    }
+    hits.forEach((f) => matched.add(f));
+    for (const [session, group] of bySession(hits, rel)) {
+      const p = scans.add(id, session, { file: group[0] }, table.covariates[k]);
+      if (group.length > 1) {
+        p.preErrors = true;
         add({
           severity: 'error',
-          code: 'no-matrix',
-          file: pf,
-          subject: id,
-          message: `${id}: no matrix file with '${id}' in its name`,
+          code: 'several-matrices',
+          file: rel(group[0]),
+          subject: p.entry.id,
+          message: `${p.entry.id} matches ${group.length} files for one scan: ${group.map(rel).join(', ')}; keep one, name it in a file column, or narrow with match`,
         });
-        continue;
-      }
-      hits.forEach((f) => matched.add(f));
-      for (const [session, group] of bySession(hits, rel)) {
-        const p = scans.add(id, session, { file: group[0] }, table.covariates[k]);
-        if (group.length > 1) {
-          p.preErrors = true;
-          add({
-            severity: 'error',
-            code: 'several-matrices',
-            file: rel(group[0]),
-            subject: p.entry.id,
-            message: `${p.entry.id} matches ${group.length} files for one scan: ${group.map(rel).join(', ')}; keep one, name it in a file column, or narrow with match`,
-          });
-        }
       }
     }
   }
+  return matched;
+}
+
+/** Matching with a participants table: by file column, by a stack, or by the id in the path. */
+async function matchWithTable(
+  scope: Scope,
+  table: ParticipantsTable,
+  files: string[],
+  stack: { file: string; data: ArrayFile } | null,
+  scans: Scans,
+): Promise<void> {
+  const { rel, add } = scope;
+  const found = tableIds(scope, table);
+  const { pf, ids, rowsOf } = found;
+  const duplicates = new Set(ids.filter((id) => rowsOf.get(id)!.length > 1));
+  let matched: Set<string>;
+  if (table.fileCells) matched = await matchByFileColumn(scope, table, found, scans);
+  else if (stack) {
+    matchStack(scope, table, found, stack, scans);
+    matched = new Set([stack.file]);
+  } else matched = matchByName(scope, table, found, files, scans);
   for (const p of scans.pending) {
     if (duplicates.has(p.entry.participant)) {
       p.preErrors = true;
@@ -553,8 +602,28 @@ function matchFiles(
   files: string[],
   stack: { file: string; data: ArrayFile } | null,
   scans: Scans,
+  /** A participants table exists but could not be used (reported already). */
+  unusableTable: boolean,
 ): void {
   const { rel, add } = scope;
+  if (files.length === 0) {
+    add({
+      severity: 'error',
+      code: 'no-matrices',
+      file: null,
+      subject: null,
+      message: `no matrix files (.csv, .tsv, .txt, .npy, .mat) in ${scope.root}`,
+    });
+  }
+  if (!unusableTable && files.length > 0) {
+    add({
+      severity: 'warning',
+      code: 'no-participants',
+      file: null,
+      subject: null,
+      message: 'no participants.tsv: subjects are named from their files and have no covariates',
+    });
+  }
   if (stack && stack.data.kind === 'stack') {
     const stem = basename(stack.file, extname(stack.file));
     const width = String(stack.data.count).length;
@@ -613,9 +682,17 @@ async function joinCovariates(
     const participants = new Set(pending.map((p) => p.entry.participant));
     const candidates = new Map<string, string[]>();
     for (const t of tables) {
-      const owner = sessionsTableOf(t);
-      if (owner !== null && participants.has(owner))
-        candidates.set(owner, [...(candidates.get(owner) ?? []), t]);
+      const named = sessionsTableOf(t);
+      // An id written without 'sub-' in the participants table owns sub-<id>_sessions.tsv.
+      const owner =
+        named === null
+          ? null
+          : participants.has(named)
+            ? named
+            : named.startsWith('sub-') && participants.has(named.slice(4))
+              ? named.slice(4)
+              : null;
+      if (owner !== null) candidates.set(owner, [...(candidates.get(owner) ?? []), t]);
     }
     const chosen: Array<{ participant: string; file: string; rel: string }> = [];
     for (const [participant, list] of candidates) {
@@ -696,40 +773,16 @@ async function joinCovariates(
   return columns;
 }
 
-export async function openCohort(
-  req: OpenCohortRequest,
-  options: OpenCohortOptions = {},
-): Promise<CohortReport> {
-  const root = resolve(req.dir);
-  let isDir = false;
-  try {
-    isDir = (await stat(root)).isDirectory();
-  } catch {
-    throw new InputFileError(root, 'no such folder', 'no-cohort');
-  }
-  if (!isDir) throw new InputFileError(root, 'is not a folder', 'no-cohort');
-  const findings: QcFinding[] = [];
-  const scope: Scope = {
-    root,
-    req,
-    conf: await confinement(root, options.allowedRoots),
-    rel: (p: string): string => {
-      const r = relative(root, p);
-      return r.startsWith('..') || isAbsolute(r) ? p : r.split(sep).join('/');
-    },
-    findings,
-    add: (f) => findings.push(f),
-  };
-  const { rel, add } = scope;
-
-  const located = await locateTables(scope);
-  const nodes = located.nodes ? await readNodes(scope, located.nodes) : null;
-  const table = located.participants ? await readParticipants(scope, located.participants) : null;
-
-  // ---- candidate files ----
-  const listing = await listFiles(root, scope);
+/** The matrix candidates (tables left out, narrowed by match), those outside the chosen folders, and a lone stack. */
+async function candidates(
+  scope: Scope,
+  matrices: string[],
+  located: { participants: string | null; nodes: string | null },
+  table: ParticipantsTable | null,
+): Promise<{ files: string[]; outside: Set<string>; stack: { file: string; data: ArrayFile } | null }> {
+  const { req } = scope;
   const skipFiles = new Set([located.participants, located.nodes].filter((x): x is string => x !== null));
-  let files = listing.matrices.filter((f) => !skipFiles.has(f));
+  let files = matrices.filter((f) => !skipFiles.has(f));
   if (req.match) {
     const match = nfc(req.match);
     files = files.filter((f) => nfc(basename(f)).includes(match));
@@ -753,30 +806,12 @@ export async function openCohort(
     }
   }
 
-  const scans = new Scans(scope, outside);
-  if (table) await matchWithTable(scope, table, files, stack, scans);
-  else {
-    if (files.length === 0) {
-      add({
-        severity: 'error',
-        code: 'no-matrices',
-        file: null,
-        subject: null,
-        message: `no matrix files (.csv, .tsv, .txt, .npy, .mat) in ${root}`,
-      });
-    }
-    if (!located.participants && files.length > 0) {
-      add({
-        severity: 'warning',
-        code: 'no-participants',
-        file: null,
-        subject: null,
-        message: 'no participants.tsv: subjects are named from their files and have no covariates',
-      });
-    }
-    matchFiles(scope, files, stack, scans);
-  }
-  const pending = scans.pending;
+  return { files, outside, stack };
+}
+
+/** The cohort's session labels (natural order), or null; warns of missing sessions and files naming none. */
+function sessionsOf(scope: Scope, pending: Pending[]): string[] | null {
+  const { rel, add } = scope;
   const labels = [...new Set(pending.map((p) => p.entry.session).filter((s): s is string => s !== null))];
   const sessions = labels.length > 0 ? labels.sort(naturalOrder.compare) : null;
   if (sessions) {
@@ -809,6 +844,46 @@ export async function openCohort(
       }
     }
   }
+  return sessions;
+}
+
+export async function openCohort(
+  req: OpenCohortRequest,
+  options: OpenCohortOptions = {},
+): Promise<CohortReport> {
+  const root = resolve(req.dir);
+  let isDir = false;
+  try {
+    isDir = (await stat(root)).isDirectory();
+  } catch {
+    throw new InputFileError(root, 'no such folder', 'no-cohort');
+  }
+  if (!isDir) throw new InputFileError(root, 'is not a folder', 'no-cohort');
+  const findings: QcFinding[] = [];
+  const scope: Scope = {
+    root,
+    req,
+    conf: await confinement(root, options.allowedRoots),
+    rel: (p: string): string => {
+      const r = relative(root, p);
+      return r.startsWith('..') || isAbsolute(r) ? p : r.split(sep).join('/');
+    },
+    findings,
+    add: (f) => findings.push(f),
+  };
+
+  const located = await locateTables(scope);
+  const nodes = located.nodes ? await readNodes(scope, located.nodes) : null;
+  const table = located.participants ? await readParticipants(scope, located.participants) : null;
+
+  const listing = await listFiles(root, scope);
+  const { files, outside, stack } = await candidates(scope, listing.matrices, located, table);
+
+  const scans = new Scans(scope, outside);
+  if (table) await matchWithTable(scope, table, files, stack, scans);
+  else matchFiles(scope, files, stack, scans, located.participants !== null);
+  const pending = scans.pending;
+  const sessions = sessionsOf(scope, pending);
   const columns = await joinCovariates(
     scope,
     pending,
