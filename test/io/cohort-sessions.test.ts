@@ -381,6 +381,44 @@ describe('files outside the chosen folders are refused and never read', () => {
   });
 });
 
+describe('the caller’s own choices and links inside the folder', () => {
+  it('a participants table named explicitly is read where it is; the files it names stay confined', async () => {
+    const elsewhere = tempDir();
+    const dir = tempDir();
+    write(elsewhere, 'secret_conn.tsv', tsv(matrix(2)));
+    write(elsewhere, 'table.tsv', 'participant_id\tage\nsub-01\t40\nsub-02\t41\n');
+    write(dir, 'sub-01_conn.tsv', tsv(matrix(1)));
+    symlinkSync(join(elsewhere, 'secret_conn.tsv'), join(dir, 'sub-02_conn.tsv'));
+    const report = await openCohort({ dir, participants: join(elsewhere, 'table.tsv') });
+    expect(report.subjects.map((s) => [s.id, s.covariates.age, s.usable])).toEqual([
+      ['sub-01', 40, true],
+      ['sub-02', 41, false],
+    ]);
+    expect(report.findings.find((f) => f.code === 'outside-folder')!.file).toBe('sub-02_conn.tsv');
+  });
+
+  it('a link to a file inside the folder is followed; a link to a folder is reported, not followed', async () => {
+    const dir = tempDir();
+    write(dir, 'participants.tsv', 'participant_id\n01\n02\n');
+    write(dir, 'store/a.tsv', tsv(matrix(11)));
+    symlinkSync(join(dir, 'store', 'a.tsv'), join(dir, 'sub-01_ses-1_conn.tsv'));
+    write(dir, 'real/sub-02_ses-1_conn.tsv', tsv(matrix(12)));
+    write(dir, 'sub-02_sessions.tsv', 'session_id\tfd_mean\n1\t0.2\n');
+    symlinkSync(join(dir, 'real'), join(dir, 'linked'));
+    const report = await openCohort({ dir });
+    expect(report.findings.find((f) => f.code === 'symlink-folder')!.file).toBe('linked');
+    const s1 = report.subjects.find((s) => s.participant === '01')!;
+    expect(s1.usable).toBe(true);
+    expect([...(await loadSubjectMatrix(s1)).values]).toEqual([...matrix(11).values]);
+    // An id written without 'sub-' owns sub-<id>_sessions.tsv; session_id without 'ses-' joins too.
+    const s2 = report.subjects.find((s) => s.participant === '02')!;
+    expect(s2).toMatchObject({ id: '02_ses-1', session: '1' });
+    expect(s2.covariates.fd_mean).toBe(0.2);
+    // store/a.tsv names no participant: a file without one, as always.
+    expect(report.findings.some((f) => f.code === 'no-participant' && f.file === 'store/a.tsv')).toBe(true);
+  });
+});
+
 describe('participants.tsv and participants.csv both present', () => {
   it('uses the .tsv and names both in a warning', async () => {
     const dir = tempDir();
