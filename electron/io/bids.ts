@@ -37,11 +37,22 @@ export function participantOf(rel: string): string | null {
   return m ? m[1] : null;
 }
 
-/** The session label (after `ses-`) of a path: from the file name, else from a folder; null when none. */
+/**
+ * The session label (after `ses-`) of a path: an entity of the file name (at its start or after
+ * '_'), else a folder named exactly `ses-<label>`; null when none. Stricter than participant
+ * tokens, so that a folder like `pre-ses-data` or `my_ses-notes` names no session.
+ */
 export function sessionOf(rel: string): string | null {
-  const r = nfc(rel);
-  const m = entityRe('ses', false).exec(basename(r)) ?? entityRe('ses', false).exec(r);
-  return m ? m[1].slice(4) : null;
+  const parts = nfc(rel).split(/[\\/]/);
+  const name = parts.pop() ?? '';
+  const inName = new RegExp(`(?:^|_)ses-(${LABEL}+)(?=_|\\.|$)`, 'u').exec(name);
+  if (inName) return inName[1];
+  const folder = new RegExp(`^ses-(${LABEL}+)$`, 'u');
+  for (let k = parts.length - 1; k >= 0; k--) {
+    const m = folder.exec(parts[k]);
+    if (m) return m[1];
+  }
+  return null;
 }
 
 /** A whole-token match of an id (not preceded or followed by a label character), for ids without `sub-`. */

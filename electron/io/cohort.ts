@@ -347,6 +347,18 @@ class Scans {
     this.pending.push(p);
     return p;
   }
+
+  /** A scan whose file is outside the chosen folders (already reported): listed as unusable, never read. */
+  refused(
+    participant: string,
+    session: string | null,
+    source: MatrixSource,
+    covariates: Record<string, CovariateValue>,
+  ): void {
+    const p = this.add(participant, session, source, covariates);
+    p.preErrors = true;
+    p.outside = true;
+  }
 }
 
 /** A participant's files grouped by session (null: the file names none), sessions in natural order. */
@@ -438,6 +450,7 @@ async function matchByFileColumn(
     }
     if (place === 'outside') {
       add(outsideFinding(cellText, id, `row ${k + 2} of ${pf} names`));
+      scans.refused(id, sessionOf(basename(cellText)), { file }, table.covariates[k]);
       continue;
     }
     matched.add(file);

@@ -223,6 +223,34 @@ describe('a flat folder with sessions', () => {
   });
 });
 
+describe('what names a session', () => {
+  it('a ses- entity of the file name or a folder named ses-<label>; not text that merely contains ses-', async () => {
+    const dir = tempDir();
+    write(dir, 'pre-ses-data/sub-01_conn.tsv', tsv(matrix(1)));
+    write(dir, 'my_ses-notes/sub-02_run-ses-1_conn.tsv', tsv(matrix(2)));
+    const none = await openCohort({ dir });
+    expect(none.sessions).toBeNull();
+    expect(none.subjects.map((s) => s.id)).toEqual(['sub-02', 'sub-01']);
+    write(dir, 'sub-03/ses-b/sub-03_conn.tsv', tsv(matrix(3)));
+    write(dir, 'sub-04_ses-a_conn.tsv', tsv(matrix(4)));
+    const some = await openCohort({ dir });
+    expect(some.sessions).toEqual(['a', 'b']);
+    expect(some.subjects.map((s) => s.id).sort()).toEqual([
+      'sub-01',
+      'sub-02',
+      'sub-03_ses-b',
+      'sub-04_ses-a',
+    ]);
+    // Files without a session in a cohort with sessions are analysed and flagged.
+    expect(
+      some.findings
+        .filter((f) => f.code === 'no-session')
+        .map((f) => f.subject)
+        .sort(),
+    ).toEqual(['sub-01', 'sub-02']);
+  });
+});
+
 describe('two files for one scan', () => {
   it('is an error naming both files; the other session of the participant is fine', async () => {
     const dir = tempDir();
@@ -361,7 +389,12 @@ describe('files outside the chosen folders are refused and never read', () => {
     const refused = report.findings.filter((f) => f.code === 'outside-folder');
     expect(refused.map((f) => f.subject)).toEqual(['sub-02', 'sub-03']);
     expect(refused[0].message).toContain(rel);
-    expect(report.subjects.map((s) => s.id)).toEqual(['sub-01']);
+    // Listed as excluded, with the refusal as the reason.
+    expect(report.subjects.map((s) => [s.id, s.usable])).toEqual([
+      ['sub-01', true],
+      ['sub-02', false],
+      ['sub-03', false],
+    ]);
     clean(report);
   });
 
