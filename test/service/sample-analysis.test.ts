@@ -12,6 +12,8 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { main } from '../../electron/cli.ts';
+import { createLoopwiseService } from '../../electron/service/service.ts';
+import { defaultAnalysisSettings, defaultStatsSettings } from '../../electron/service/settings.ts';
 
 const PLANTED = ['L_AUD_2', 'R_SMN_3', 'L_SAL_1', 'R_FPN_4'];
 const work = mkdtempSync(join(tmpdir(), 'loopwise-sample-'));
@@ -202,4 +204,46 @@ describe('loopwise analyze on the malformed companion cohort', () => {
     // The matrix without a participant (sub-09) is a QC finding, not a subject.
     expect(status['sub-09']).toBeUndefined();
   }, 120_000);
+});
+
+describe('the longitudinal design on both sessions (group × session, participant blocks)', () => {
+  it('finds the planted regions in the interaction after FWER correction, nothing outside the networks they bridge', async () => {
+    const longOut = join(work, 'longitudinal');
+    const service = createLoopwiseService();
+    try {
+      const { runId } = await service.startRun({
+        cohort: { dir: 'sample-data/rhythm-study' },
+        settings: defaultAnalysisSettings(),
+        stats: {
+          ...defaultStatsSettings(),
+          model: 'group*session + age + sex + fd_mean',
+          test: 'group:session',
+          blocks: 'participant_id',
+          permutations: 1000,
+          seed: 11,
+        },
+        outDir: longOut,
+        workers: 2,
+      });
+      const summary = await service.waitForRun(runId);
+      expect(summary.status).toBe('done');
+    } finally {
+      await service.close();
+    }
+    const [head, ...lines] = readFileSync(join(longOut, 'stats.tsv'), 'utf8').trimEnd().split('\n');
+    const cols = head.split('\t');
+    const rows = lines
+      .map((l) => Object.fromEntries(l.split('\t').map((v, i) => [cols[i], v])))
+      .filter((r) => r.family === 'nodes:h1_weighted');
+    expect(rows).toHaveLength(60);
+    const significant = rows.filter((r) => Number(r.p_fwer) <= 0.05).map((r) => r.node_or_point);
+    for (const label of PLANTED) expect(significant).toContain(label);
+    for (const label of significant) expect(TARGET_NETWORKS).toContain(label.split('_')[1]);
+    // Scans of one participant are not exchangeable with other participants': blocked permutations.
+    expect(new Set(rows.map((r) => r.scheme)).size).toBe(1);
+    expect(rows[0].scheme).toMatch(/block/);
+    const [fhead, ...features] = readFileSync(join(longOut, 'features.tsv'), 'utf8').trimEnd().split('\n');
+    expect(fhead.split('\t').slice(0, 2)).toEqual(['participant_id', 'session']);
+    expect(features).toHaveLength(48);
+  }, 240_000);
 });
