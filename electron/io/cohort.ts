@@ -247,7 +247,7 @@ async function readParticipants(scope: Scope, file: string): Promise<Participant
   const { req, add } = scope;
   const pf = scope.rel(file);
   try {
-    const t = await readStringTable(file);
+    const t = await readStringTable(file, { findings: scope.findings, rel: pf, table: 'participants' });
     const idCol = t.header.findIndex((h) => h.toLowerCase() === 'participant_id');
     if (idCol < 0) {
       add({

@@ -36,7 +36,7 @@ export async function readSessionsTables(
   const read: Array<{ t: SessionsTableFile; table: StringTable; idCol: number }> = [];
   for (const t of tables) {
     try {
-      const table = await readStringTable(t.file);
+      const table = await readStringTable(t.file, { findings, rel: t.rel, table: 'sessions' });
       const idCol = table.header.findIndex((h) => h.toLowerCase() === SESSION_ID);
       if (idCol < 0) {
         findings.push({
