@@ -256,8 +256,9 @@ export async function analyzeCommand(args: string[], io: CliIO): Promise<number>
     unlisten();
     await service.close();
     io.err(`${prefix}: ${e instanceof Error ? e.message : String(e)}\n`);
-    // A refused output folder, a cohort that cannot be opened, invalid settings: all input errors.
-    return 2;
+    // A refused output folder, a cohort that cannot be opened, invalid settings: all input errors;
+    // a folder that cannot take the writes (full disk, read-only) is a failed job.
+    return e instanceof Error && e.name === 'WriteError' ? 1 : 2;
   }
   let interrupts = 0;
   const onSigint = (): void => {

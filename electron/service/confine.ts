@@ -64,10 +64,7 @@ export interface DoorRoots {
  * read or write root; every path it writes must lie in a write root and must not overlap a cohort
  * folder. Returns the refusal's message, or null when the call may go ahead.
  */
-export function checkDoorPaths(
-  call: { reads: string[]; writes: string[] },
-  roots: DoorRoots,
-): string | null {
+export function checkDoorPaths(call: { reads: string[]; writes: string[] }, roots: DoorRoots): string | null {
   const real = (list: string[]): string[] => list.filter((r) => existsSync(r)).map((r) => realPathOf(r));
   const readable = real([...roots.read, ...roots.write]);
   const writable = real(roots.write);

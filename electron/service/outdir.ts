@@ -76,7 +76,9 @@ async function readJson<T>(file: string): Promise<T | null> {
 export async function readManifest(dir: string): Promise<Manifest | null> {
   const m = await readJson<Manifest>(join(dir, MANIFEST));
   if (m && Array.isArray(m.files)) return m;
-  const legacy = await readJson<{ status: 'running' | 'complete'; files: string[] }>(join(dir, LEGACY_MARKER));
+  const legacy = await readJson<{ status: 'running' | 'complete'; files: string[] }>(
+    join(dir, LEGACY_MARKER),
+  );
   if (legacy && Array.isArray(legacy.files))
     return { format: 1, tool: 'loopwise', status: legacy.status, run: null, files: legacy.files };
   return null;
@@ -117,7 +119,10 @@ async function takeLock(dir: string, name: string): Promise<LockInfo> {
     // An unreadable lock is one whose writer died between creating and filling it.
     const gone =
       owner === null ||
-      (owner.host === HOST && owner.pid !== process.pid && Number.isInteger(owner.pid) && !isAlive(owner.pid));
+      (owner.host === HOST &&
+        owner.pid !== process.pid &&
+        Number.isInteger(owner.pid) &&
+        !isAlive(owner.pid));
     if (!gone) {
       const who =
         owner.pid === process.pid && owner.host === HOST
@@ -164,7 +169,14 @@ export class OutputFolder {
   private lock: LockInfo | null;
   private readonly shard: boolean;
 
-  private constructor(dir: string, owned: string[], run: RunDescription, lockName: string, lock: LockInfo, shard: boolean) {
+  private constructor(
+    dir: string,
+    owned: string[],
+    run: RunDescription,
+    lockName: string,
+    lock: LockInfo,
+    shard: boolean,
+  ) {
     this.dir = dir;
     this.owned = new Set(owned);
     this.run = run;

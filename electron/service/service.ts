@@ -41,14 +41,7 @@ import type { CohortSource, SourceOptions } from './cohort-source.ts';
 import type { RunHooks, StageOutput } from './hooks.ts';
 import { OutDirError, OutputFolder } from './outdir.ts';
 import type { RunDescription } from './outdir.ts';
-import {
-  SHARD_DIR,
-  checkShard,
-  readShards,
-  shardLockName,
-  shareOf,
-  writeShardManifest,
-} from './shards.ts';
+import { SHARD_DIR, checkShard, readShards, shardLockName, shareOf, writeShardManifest } from './shards.ts';
 import type { ShardManifest } from './shards.ts';
 import { makeStageContext } from './stage-context.ts';
 import { cohortStages } from './stages.ts';

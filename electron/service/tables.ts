@@ -43,11 +43,16 @@ export interface RunRecords {
   unmatched?: Array<{ id: string; reason: string }>;
 }
 
-/** Participants of the report without a matrix: the QC findings 'no-matrix'. */
+/** A finding's message naming the file behind it ('FILE: message'), unless the message already starts with it. */
+export function findingText(f: { file?: string | null; message: string }): string {
+  return f.file && !f.message.startsWith(f.file) ? `${f.file}: ${f.message}` : f.message;
+}
+
+/** Participants of the report without a matrix: the QC findings 'no-matrix' (naming the participants table). */
 export function unmatchedParticipants(report: CohortReport): Array<{ id: string; reason: string }> {
   return report.findings
     .filter((f) => f.code === 'no-matrix' && f.subject !== null)
-    .map((f) => ({ id: f.subject as string, reason: f.message }));
+    .map((f) => ({ id: f.subject as string, reason: findingText(f) }));
 }
 
 export function tableNames(format: TableFormat): { intervals: string; subjects: string; provenance: string } {
