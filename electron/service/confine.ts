@@ -55,27 +55,47 @@ export interface DoorRoots {
   read: string[];
   /** Folders the door may write into (the results folder, output folders the user picked). */
   write: string[];
-  /** Cohort folders opened in this session: never written, whatever the roots say. */
+  /** Cohort folders (the sample, those opened in this session): never written, whatever the roots say. */
   cohorts: string[];
+}
+
+/** The paths a checked call reads and those it writes (the output folder of startRun and exportRun). */
+export function callPaths(
+  method: string,
+  checked: { args: unknown[]; paths: string[] },
+): {
+  reads: string[];
+  writes: string[];
+} {
+  let writes: string[] = [];
+  if (method === 'startRun') {
+    const outDir = (checked.args[0] as { outDir?: string | null }).outDir;
+    writes = outDir ? [outDir] : [];
+  } else if (method === 'exportRun') writes = [checked.args[1] as string];
+  return { reads: checked.paths.filter((p) => !writes.includes(p)), writes };
 }
 
 /**
  * The one path check of every door (HTTP and Electron IPC): every path a call reads must lie in a
- * read or write root; every path it writes must lie in a write root and must not overlap a cohort
- * folder. Returns the refusal's message, or null when the call may go ahead.
+ * read or write root; every path it writes must lie in a write root and must be neither a cohort
+ * folder nor inside one. Returns the refusal's message, or null when the call may go ahead.
  */
 export function checkDoorPaths(call: { reads: string[]; writes: string[] }, roots: DoorRoots): string | null {
   const real = (list: string[]): string[] => list.filter((r) => existsSync(r)).map((r) => realPathOf(r));
   const readable = real([...roots.read, ...roots.write]);
   const writable = real(roots.write);
+  const cohorts = roots.cohorts.map((c) => realPathOf(c));
   for (const p of call.reads) {
-    if (!insideRoots(p, readable)) return `${p} is outside the folders this session may read`;
+    if (!insideRoots(p, readable))
+      return `${p} is outside the folders this session may use (${[...roots.read, ...roots.write].join(', ')})`;
   }
   for (const p of call.writes) {
     if (!insideRoots(p, writable))
-      return `${p} is not inside a folder this session may write to (${roots.write.join(', ') || 'none'})`;
-    const overlap = outputOverlapsInputs(p, roots.cohorts);
-    if (overlap) return `${overlap}: cohort folders are read-only`;
+      return `${p} is not inside a folder this session may write to (${roots.write.join(', ') || 'none'}); cohort folders and the sample are read-only`;
+    const out = realPathOf(p);
+    const cohort = cohorts.find((c) => within(out, c));
+    if (cohort !== undefined)
+      return `${p} ${out === cohort ? 'is' : 'lies inside'} the cohort folder ${cohort}, which is read-only: choose another output folder`;
   }
   return null;
 }
