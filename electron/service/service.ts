@@ -30,19 +30,19 @@ import type {
   StartRunRequest,
   StatsSettings,
   SubjectResult,
-  Table,
 } from '../api.ts';
 import { WorkerPool, defaultPoolSize } from '../workers/pool.ts';
 import { FiltrationCache } from './cache.ts';
-import { realPathOf } from './confine.ts';
 import { loadSubjectMatrix } from '../io/cohort.ts';
 import { openCohortSource } from './cohort-source.ts';
 import type { CohortSource, SourceOptions } from './cohort-source.ts';
 import type { RunHooks, StageOutput } from './hooks.ts';
-import { OutDirError, OutputFolder } from './outdir.ts';
-import type { RunDescription } from './outdir.ts';
+import { OutDirError } from './outdir.ts';
+import type { OutputFolder } from './outdir.ts';
+import { openRunFolder } from './run-folder.ts';
 import { SHARD_DIR, checkShard, readShards, shardLockName, shareOf, writeShardManifest } from './shards.ts';
 import type { ShardManifest } from './shards.ts';
+import { assembleCohortResults, assembleSubjectResult } from './results.ts';
 import { makeStageContext } from './stage-context.ts';
 import { cohortStages } from './stages.ts';
 import { runFiltrationStage } from './pipeline.ts';
@@ -60,62 +60,6 @@ export { OutDirError, SHARD_DIR, shareOf };
 export type { ShardManifest };
 
 export const CACHE_DIR_NAME = '.loopwise-cache';
-
-/** Every table a run may write, by base name: a file Loopwise did not write under one of these names refuses the folder up front. */
-const RUN_TABLES = [
-  'features',
-  'nodes',
-  'networks',
-  'curves',
-  'intervals',
-  'subjects',
-  'group-curves',
-  'group-intervals',
-  'group-nodes',
-  'stats',
-  'diagram-tests',
-  'embedding',
-];
-
-function runFileNames(format: TableFormat): string[] {
-  return [...RUN_TABLES.map((t) => `${t}.${format}`), 'provenance.json', 'stats-warnings.json'];
-}
-
-/** The files a cohort request reads: an output folder may not overlap them. */
-function cohortInputs(cohort: OpenCohortRequest): string[] {
-  const dir = resolve(cohort.dir);
-  const inFolder = (p: string): string => resolve(dir, p);
-  return [
-    dir,
-    ...(cohort.participants ? [inFolder(cohort.participants)] : []),
-    ...(cohort.nodes ? [inFolder(cohort.nodes)] : []),
-  ];
-}
-
-/** What a run is asked to do, as recorded in its output folder's manifest (resume needs the same). */
-function describeRun(
-  cohort: OpenCohortRequest,
-  settings: AnalysisSettings,
-  stats: StatsSettings,
-  format: TableFormat,
-): RunDescription {
-  const inputs = cohortInputs(cohort).map((p) => realPathOf(p));
-  return {
-    cohort: inputs[0],
-    participants: cohort.participants ? inputs[1] : null,
-    nodes: cohort.nodes ? inputs[inputs.length - 1] : null,
-    reading: {
-      variable: cohort.variable ?? null,
-      fileColumn: cohort.fileColumn ?? null,
-      match: cohort.match ?? null,
-      timeSeries: cohort.timeSeries ?? null,
-      columnKinds: cohort.columnKinds ?? null,
-    },
-    settings,
-    stats,
-    format,
-  };
-}
 
 function reasonOf(e: unknown): string {
   return e instanceof Error ? e.message : String(e);
@@ -174,10 +118,6 @@ function newRunState(
     summary: null,
     done: Promise.resolve(null as unknown as RunSummary),
   };
-}
-
-function emptyTable(columns: string[]): Table {
-  return { columns, rows: [] };
 }
 
 export class LoopwiseService implements LoopwiseApi {
@@ -251,13 +191,13 @@ export class LoopwiseService implements LoopwiseApi {
     const outDir = req.outDir ? resolve(req.outDir) : null;
     // The folder first: a refusal comes before any work, and the lock keeps a second run out.
     const folder = outDir
-      ? await OutputFolder.open(outDir, {
-          force: req.force ?? false,
-          run: describeRun(req.cohort, req.settings, req.stats, format),
-          inputs: cohortInputs(req.cohort),
-          names: runFileNames(format),
-          ...(req.shard ? { lock: shardLockName(req.shard), shard: true } : {}),
-        })
+      ? await openRunFolder(
+          outDir,
+          req,
+          format,
+          req.force ?? false,
+          req.shard ? shardLockName(req.shard) : null,
+        )
       : null;
     let source: CohortSource;
     let cache: FiltrationCache;
@@ -522,12 +462,12 @@ export class LoopwiseService implements LoopwiseApi {
     // Statistics run after the merge, so they may be chosen now; the shards' own are the default.
     const stats: StatsSettings = { ...first.stats, ...opts.stats };
     const cohort = { dir: first.report.root };
-    const folder = await OutputFolder.open(dir, {
-      force: opts.force ?? false,
-      run: describeRun(cohort, first.settings, stats, format),
-      inputs: cohortInputs(cohort),
-      names: runFileNames(format),
-    });
+    const folder = await openRunFolder(
+      dir,
+      { cohort, settings: first.settings, stats },
+      format,
+      opts.force ?? false,
+    );
     const cache = new FiltrationCache(resolve(opts.cacheDir ?? first.cacheDir));
     const runId = `run-${this.nextRun++}`;
     const state = newRunState({
@@ -601,62 +541,12 @@ export class LoopwiseService implements LoopwiseApi {
 
   async cohortResults(runId: string): Promise<CohortResults | null> {
     const s = this.runs.get(runId);
-    // A run whose later stage failed still answers with what it made (e.g. features without statistics).
-    if (!s || (s.status !== 'done' && s.status !== 'failed') || !s.run || !s.provenance) return null;
-    const r = s.results;
-    return {
-      runId,
-      provenance: s.provenance,
-      // Until the features hook (stage 3) fills it: the per-subject interval counts.
-      features: r.features ?? (await this.countsTable(s)),
-      nodeScores:
-        r.nodeScores ?? emptyTable(['participant_id', 'node', 'label', 'network', 'measure', 'value']),
-      groupCurves: r.groupCurves ?? [],
-      groupDiagrams: r.groupDiagrams ?? [],
-      stats: r.stats ?? null,
-      diagramTests: r.diagramTests ?? null,
-      embedding: r.embedding ?? null,
-    };
-  }
-
-  private async countsTable(s: RunState): Promise<Table> {
-    const run = s.run as RunRecords;
-    const dims = Array.from({ length: run.settings.maxDim + 1 }, (_, d) => d);
-    const table: Table = {
-      columns: ['participant_id', 'status', ...dims.map((d) => `h${d}_intervals`)],
-      rows: [],
-    };
-    for (const rec of run.records) {
-      const e = rec.status === 'analysed' && rec.key ? await s.cache.get(rec.key) : null;
-      table.rows.push([rec.id, rec.status, ...dims.map((d) => (e ? e.diagrams[d].length : null))]);
-    }
-    return table;
+    return s ? assembleCohortResults(s) : null;
   }
 
   async subjectResult(runId: string, subjectId: string): Promise<SubjectResult | null> {
     const s = this.runs.get(runId);
-    const rec = s?.run?.records.find((r) => r.id === subjectId);
-    if (!s || !rec || rec.status !== 'analysed' || !rec.key) return null;
-    const e = await s.cache.get(rec.key);
-    if (!e) return null;
-    const entry = s.report.subjects[rec.index];
-    const matrix = s.source ? await s.source.load(entry).catch(() => null) : null;
-    const groupColumn = s.run?.stats.groupColumn;
-    const g = groupColumn ? entry.covariates[groupColumn] : null;
-    return {
-      id: rec.id,
-      group: g === null || g === undefined ? null : String(g),
-      n: matrix?.n ?? e.n,
-      matrix: matrix ? Array.from(matrix.values) : [],
-      diagrams: e.diagrams,
-      representatives: (e.representatives ?? []).map((rep, k) => ({
-        birth: e.diagrams[1][k][0],
-        death: e.diagrams[1][k][1],
-        edges: rep.edges,
-        nodes: rep.nodes,
-      })),
-      nodeScores: {},
-    };
+    return s ? assembleSubjectResult(s, subjectId) : null;
   }
 
   async exportRun(runId: string, outDir: string, overwrite: boolean): Promise<{ files: string[] }> {
@@ -664,12 +554,7 @@ export class LoopwiseService implements LoopwiseApi {
     if (!s || s.status !== 'done' || !s.run) throw new Error(`run ${runId} has not finished`);
     const dir = resolve(outDir);
     const format = s.request.tableFormat ?? 'tsv';
-    const folder = await OutputFolder.open(dir, {
-      force: overwrite,
-      run: describeRun(s.request.cohort, s.request.settings, s.request.stats, format),
-      inputs: cohortInputs(s.request.cohort),
-      names: runFileNames(format),
-    });
+    const folder = await openRunFolder(dir, s.request, format, overwrite);
     try {
       const files = await this.finish(s, folder, format);
       if (s.stageFailures.length > 0)
