@@ -19,7 +19,7 @@
 import { lstat, mkdir, open, readFile, readdir, rm } from 'node:fs/promises';
 import { hostname } from 'node:os';
 import { join } from 'node:path';
-import { openAtomicWriter, removeStaleTemps, writeFileAtomic } from './atomic.ts';
+import { asWriteError, openAtomicWriter, removeStaleTemps, writeFileAtomic } from './atomic.ts';
 import type { AtomicWriter } from './atomic.ts';
 import { outputOverlapsInputs } from './confine.ts';
 
@@ -192,9 +192,15 @@ export class OutputFolder {
       throw new OutDirError(
         `${overlap}; Loopwise never writes into a cohort's files: choose an output folder outside it`,
       );
-    await mkdir(dir, { recursive: true });
     const lockName = opts.lock ?? LOCK;
-    const lock = await takeLock(dir, lockName);
+    let lock: LockInfo;
+    try {
+      await mkdir(dir, { recursive: true });
+      lock = await takeLock(dir, lockName);
+    } catch (e) {
+      // A folder that cannot be made or written (read-only, no permission, full) says so by name.
+      throw asWriteError(e, join(dir, lockName));
+    }
     try {
       await removeStaleTemps(dir);
       if (opts.shard) return new OutputFolder(dir, [], opts.run, lockName, lock, true);
