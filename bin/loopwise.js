@@ -1,7 +1,16 @@
 #!/usr/bin/env node
-// Launcher for the `loopwise` command: runs the TypeScript CLI through tsx's loader.
-import { register } from 'tsx/esm/api';
+// Launcher for the `loopwise` command. It runs the compiled CLI in dist-node/ (bin/build-node.js;
+// `npm ci` builds it) when that build matches the sources on disk, and otherwise the TypeScript
+// sources through tsx's loader, so an edited source is never served from a stale build.
+// LOOPWISE_FROM_SOURCE=1 always runs the sources.
+import { isBuildFresh } from './build-node.js';
 
-register();
-const { main } = await import('../electron/cli.ts');
+let main;
+if (process.env.LOOPWISE_FROM_SOURCE !== '1' && isBuildFresh()) {
+  ({ main } = await import('../dist-node/cli.js'));
+} else {
+  const { register } = await import('tsx/esm/api');
+  register();
+  ({ main } = await import('../electron/cli.ts'));
+}
 process.exitCode = await main(process.argv.slice(2));

@@ -1,10 +1,10 @@
 /**
  * The `loopwise` command-line door. Each command lives in electron/cli/<name>.ts and returns
  * an exit code: 0 success, 1 the job failed (e.g. no usable subject), 2 a usage or input error.
+ * Commands are imported only when run, so `--help` and `--version` never load the service.
  */
-import { analyzeCommand } from './cli/analyze.ts';
-import { diagramCommand } from './cli/diagram.ts';
-import { mergeCommand } from './cli/merge.ts';
+import pkg from '../package.json' with { type: 'json' };
+import { ENGINE_VERSION } from './engine/version.ts';
 
 export interface CliIO {
   out: (text: string) => void;
@@ -15,11 +15,17 @@ export type Command = (args: string[], io: CliIO) => Promise<number>;
 
 const COMMANDS: Record<string, { run: Command; summary: string }> = {
   diagram: {
-    run: diagramCommand,
+    run: (a, io) => import('./cli/diagram.ts').then((m) => m.diagramCommand(a, io)),
     summary: 'persistence diagrams (and cycle representatives) of matrix files, as JSON',
   },
-  analyze: { run: analyzeCommand, summary: 'persistence of every subject of a cohort, cached and resumable' },
-  merge: { run: mergeCommand, summary: 'combine the shards of a cohort run (analyze --shard K/M)' },
+  analyze: {
+    run: (a, io) => import('./cli/analyze.ts').then((m) => m.analyzeCommand(a, io)),
+    summary: 'persistence of every subject of a cohort, cached and resumable',
+  },
+  merge: {
+    run: (a, io) => import('./cli/merge.ts').then((m) => m.mergeCommand(a, io)),
+    summary: 'combine the shards of a cohort run (analyze --shard K/M)',
+  },
   validate: {
     run: (a, io) => import('./cli/validate.ts').then((m) => m.validateCommand(a, io)),
     summary: 'check a cohort and print its QC report',
@@ -33,7 +39,10 @@ ${Object.entries(COMMANDS)
   .map(([name, c]) => `  ${name.padEnd(10)} ${c.summary}`)
   .join('\n')}
 
-Run 'loopwise <command> --help' for a command's options.`;
+Run 'loopwise <command> --help' for a command's options; 'loopwise --version' prints the version.`;
+
+/** `loopwise X.Y.Z (engine N)`: the package's version and the engine's (part of every cache key). */
+export const VERSION_LINE = `loopwise ${pkg.version} (engine ${ENGINE_VERSION})`;
 
 const stdio: CliIO = {
   out: (t) => process.stdout.write(t),
@@ -45,6 +54,10 @@ export async function main(argv: string[], io: CliIO = stdio): Promise<number> {
   if (!name || name === '--help' || name === '-h') {
     io.out(USAGE + '\n');
     return name ? 0 : 2;
+  }
+  if (name === '--version') {
+    io.out(VERSION_LINE + '\n');
+    return 0;
   }
   const command = COMMANDS[name];
   if (!command) {

@@ -6,6 +6,7 @@
  */
 import { mkdir, readFile, readdir, stat } from 'node:fs/promises';
 import { join } from 'node:path';
+import { cachePath } from '../shared/cache-key.ts';
 import { removeStaleTemps, writeFileAtomic } from './atomic.ts';
 
 /** Bumped when the entries' layout changes, so older entries are recomputed rather than misread. */
@@ -33,11 +34,6 @@ const README = `This folder holds Loopwise's cached filtrations: one file per su
 filtration setting. A run reuses them instead of recomputing, and an interrupted run resumes
 from them. It is safe to delete this folder; the next run recomputes what it needs.
 `;
-
-/** Where the entry of `key` lives under the cache folder `dir`. */
-export function cachePath(dir: string, key: string): string {
-  return join(dir, 'filtrations', key.slice(0, 2), `${key}.json`);
-}
 
 export class FiltrationCache {
   readonly dir: string;

@@ -14,7 +14,7 @@ import type { PackedFiltration, WorkerReply } from '../workers/filtration.ts';
 import { CACHE_FORMAT } from './cache.ts';
 import type { CachedFiltration, FiltrationCache } from './cache.ts';
 import type { CohortSource } from './cohort-source.ts';
-import { sha256File, sha256Matrix } from './hash.ts';
+import { sha256File, sha256Matrix } from '../shared/hash.ts';
 import { filtrationKey } from './settings.ts';
 import { findingText } from './tables.ts';
 import type { SubjectRecord } from './tables.ts';

@@ -1,10 +1,8 @@
 /**
  * Default settings, their checks, and which of them shape a filtration (and so the cache key).
  */
-import { createHash } from 'node:crypto';
 import type { AnalysisSettings, StatsSettings } from '../api.ts';
 import { DEFAULT_TRANSFORM, TRANSFORMS_FOR } from '../engine/transform.ts';
-import { ENGINE_VERSION } from '../engine/version.ts';
 
 export function defaultAnalysisSettings(): AnalysisSettings {
   return {
@@ -47,34 +45,6 @@ export function checkSettings(s: AnalysisSettings): void {
     if (!Number.isInteger(r) || r < 0) throw new Error(`dropRegions holds ${r}, not a region index ≥ 0`);
 }
 
-/** The settings a filtration depends on, in a fixed key order. Everything else (features, statistics) can change freely and reuse the cache. */
-export type FiltrationFields = Pick<
-  AnalysisSettings,
-  'input' | 'transform' | 'maxDim' | 'cap' | 'representatives' | 'dropRegions'
->;
-
-export function filtrationSettings(s: FiltrationFields): Record<string, unknown> {
-  return {
-    engineVersion: ENGINE_VERSION,
-    input: s.input,
-    transform: s.transform,
-    maxDim: s.maxDim,
-    cap: s.cap.kind === 'none' ? { kind: 'none' } : { kind: s.cap.kind, value: s.cap.value },
-    representatives: s.representatives,
-    dropRegions: [...new Set(s.dropRegions)].sort((a, b) => a - b),
-  };
-}
-
-/** SHA-256 (hex) of the filtration settings alone: shards and merges check they agree on it. */
-export function filtrationSettingsHash(s: FiltrationFields): string {
-  return createHash('sha256')
-    .update(JSON.stringify(filtrationSettings(s)))
-    .digest('hex');
-}
-
-/** The cache key of one subject: its matrix bytes' hash with the filtration settings and ENGINE_VERSION. */
-export function filtrationKey(matrixSha256: string, s: FiltrationFields): string {
-  return createHash('sha256')
-    .update(JSON.stringify({ matrix: matrixSha256, ...filtrationSettings(s) }))
-    .digest('hex');
-}
+// The filtration's cache key lives in ../shared/cache-key.ts, which the workers import too.
+export { filtrationKey, filtrationSettings, filtrationSettingsHash } from '../shared/cache-key.ts';
+export type { FiltrationFields } from '../shared/cache-key.ts';

@@ -6,9 +6,8 @@
 import { access } from 'node:fs/promises';
 import { parentPort } from 'node:worker_threads';
 import { loadSubjectMatrix } from '../io/cohort.ts';
-import { cachePath } from '../service/cache.ts';
-import { sha256File, sha256Matrix } from '../service/hash.ts';
-import { filtrationKey } from '../service/settings.ts';
+import { cachePath, filtrationKey } from '../shared/cache-key.ts';
+import { sha256File, sha256Matrix } from '../shared/hash.ts';
 import { runFiltration, transferList } from './filtration.ts';
 import type { FiltrationFailure, WorkerReply, WorkerTask } from './filtration.ts';
 

@@ -14,8 +14,16 @@ import { availableParallelism } from 'node:os';
 import { Worker } from 'node:worker_threads';
 import type { FiltrationFailure, WorkerReply, WorkerTask } from './filtration.ts';
 
-/** The TypeScript worker behind a tiny .js bootstrap that registers tsx (see bootstrap.js for why). */
-export const DEFAULT_WORKER_ENTRY = new URL('./bootstrap.js', import.meta.url);
+/**
+ * The worker's entry. Run as TypeScript source (tsx, vitest), the worker sits behind a tiny .js
+ * bootstrap that registers tsx (see bootstrap.js for why). Compiled, this module is part of a
+ * bundle (dist-node/ by `npm run build:node`, dist-electron/ by `npm run build`) and the compiled
+ * worker sits beside it.
+ */
+export const DEFAULT_WORKER_ENTRY = new URL(
+  import.meta.url.endsWith('.ts') ? './bootstrap.js' : './filtration-worker.js',
+  import.meta.url,
+);
 
 export class FiltrationError extends Error {
   constructor(message: string) {

@@ -11,6 +11,7 @@ const benches = [
   ['engine.ts', 'persistence engine vs ripser'],
   ['io.ts', 'matrix and cohort loading'],
   ['cohort.ts', 'cohort throughput and memory'],
+  ['startup.ts', 'start-up and single diagrams, whole processes'],
 ];
 const extra = process.argv.slice(2);
 let failed = 0;
