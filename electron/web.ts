@@ -223,9 +223,19 @@ export async function startWebServer(api: LoopwiseApi, options: WebServerOptions
       const result = await fn.apply(api, checked.args);
       return send(res, 200, result === undefined ? null : result);
     } catch (e) {
-      // A refusal to overwrite the user's files is a conflict the user can resolve, not a server fault.
-      const conflict = e instanceof Error && e.name === 'OutDirError';
-      return send(res, conflict ? 409 : 500, { error: e instanceof Error ? e.message : String(e) });
+      // A refusal to overwrite the user's files is a conflict the user can resolve, not a server
+      // fault; so is a folder that cannot take the write (full disk: 507, read-only: 403).
+      const name = e instanceof Error ? e.name : '';
+      const code = (e as { code?: string }).code;
+      const status =
+        name === 'OutDirError'
+          ? 409
+          : name === 'WriteError'
+            ? code === 'ENOSPC' || code === 'EDQUOT'
+              ? 507
+              : 403
+            : 500;
+      return send(res, status, { error: e instanceof Error ? e.message : String(e) });
     }
   }
 

@@ -24,6 +24,7 @@ const RUN_TABLES = [
   'stats',
   'diagram-tests',
   'embedding',
+  'excluded-features',
 ];
 
 export function runFileNames(format: TableFormat): string[] {
