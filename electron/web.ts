@@ -225,12 +225,12 @@ export async function startWebServer(api: LoopwiseApi, options: WebServerOptions
     } catch (e) {
       // A refusal to overwrite the user's files is a conflict the user can resolve, not a server
       // fault; so is a folder that cannot take the write (full disk: 507, read-only: 403).
-      const name = e instanceof Error ? e.name : '';
+      const kind = e instanceof Error ? e.name : '';
       const code = (e as { code?: string }).code;
       const status =
-        name === 'OutDirError'
+        kind === 'OutDirError'
           ? 409
-          : name === 'WriteError'
+          : kind === 'WriteError'
             ? code === 'ENOSPC' || code === 'EDQUOT'
               ? 507
               : 403
