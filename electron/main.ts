@@ -28,14 +28,19 @@ export interface ElectronAppOptions {
   sampleCohort: string | null;
   defaultOutDir: string;
   version: string;
+  /** The folders this session may touch (grows through native dialogs); shared with the service's allowedRoots. */
+  roots?: Set<string>;
 }
 
 /** Wires the window, its security policy and the IPC bridge to the given service. */
 export function startElectronApp(api: LoopwiseApi, opts: ElectronAppOptions): void {
   const pageUrl = pathToFileURL(opts.indexHtml).href;
-  // The folders this session may touch: grows only through native dialogs.
-  const readRoots = new Set<string>(opts.sampleCohort ? [opts.sampleCohort] : []);
+  // The folders this session may touch: grow only through native dialogs. Every one is readable
+  // (`roots`, shared with the service's allowedRoots); outputs go only into writeRoots.
+  const roots = opts.roots ?? new Set<string>();
   const writeRoots = new Set<string>([opts.defaultOutDir]);
+  roots.add(opts.defaultOutDir);
+  if (opts.sampleCohort) roots.add(opts.sampleCohort);
   // Never written: the sample and every cohort opened in this session.
   const cohorts = new Set<string>(opts.sampleCohort ? [opts.sampleCohort] : []);
 
@@ -50,7 +55,7 @@ export function startElectronApp(api: LoopwiseApi, opts: ElectronAppOptions): vo
         version: opts.version,
         sampleCohort: opts.sampleCohort,
         defaultOutDir: opts.defaultOutDir,
-        roots: [...new Set([...readRoots, ...writeRoots])],
+        roots: [...roots],
       };
       return info;
     }
@@ -63,13 +68,14 @@ export function startElectronApp(api: LoopwiseApi, opts: ElectronAppOptions): vo
       };
       const picked = win ? await dialog.showOpenDialog(win, options) : await dialog.showOpenDialog(options);
       if (picked.canceled || picked.filePaths.length === 0) return null;
-      (purpose === 'output' ? writeRoots : readRoots).add(picked.filePaths[0]);
+      roots.add(picked.filePaths[0]);
+      if (purpose === 'output') writeRoots.add(picked.filePaths[0]);
       return picked.filePaths[0];
     }
     if (!isApiMethod(method)) throw new BadRequest(`no such method: ${method}`);
     const checked = checkCall(method, args);
     const refusal = checkDoorPaths(callPaths(method, checked), {
-      read: [...readRoots],
+      read: [...roots],
       write: [...writeRoots],
       cohorts: [...cohorts],
     });
@@ -153,7 +159,10 @@ async function boot(): Promise<void> {
   // Worker threads cannot start from inside the asar archive: the build unpacks dist-electron/.
   const workerDir = here.replace(`app.asar${sep}`, `app.asar.unpacked${sep}`);
   // The engine runs on worker threads; the build bundles their entry next to this file.
+  // The folders this session may touch, shared with the service so a cohort's files stay inside them.
+  const roots = new Set<string>();
   const api = createLoopwiseService({
+    allowedRoots: () => [...roots],
     cacheDir: join(app.getPath('userData'), 'cache'),
     workerEntry: pathToFileURL(join(workerDir, 'filtration-worker.js')),
   });
@@ -161,6 +170,7 @@ async function boot(): Promise<void> {
     indexHtml: join(appRoot, 'dist', 'index.html'),
     preload: join(here, 'preload.cjs'),
     sampleCohort: sample ?? null,
+    roots,
     defaultOutDir,
     version: app.getVersion(),
   });

@@ -81,6 +81,8 @@ export interface ServiceOptions {
   hooks?: RunHooks | (() => RunHooks);
   /** Clock for provenance.createdAt (tests). */
   now?: () => Date;
+  /** Folders besides a cohort's own that its files may resolve into (a door's roots; read at each opening). */
+  allowedRoots?: () => string[];
 }
 
 interface RunState {
@@ -147,7 +149,11 @@ export class LoopwiseService implements LoopwiseApi {
   }
 
   private openSource(req: OpenCohortRequest, opts: SourceOptions = {}): Promise<CohortSource> {
-    return (this.options.openSource ?? openCohortSource)(req, opts);
+    const roots = this.options.allowedRoots?.();
+    return (this.options.openSource ?? openCohortSource)(
+      req,
+      roots ? { ...opts, allowedRoots: roots } : opts,
+    );
   }
 
   private emit(e: ProgressEvent): void {
