@@ -236,7 +236,10 @@ function cohortPaths(req: OpenCohortRequest): string[] {
 
 // ---------- The browser client ----------
 
-/** Where the token lives in requests: a header for fetch, a query parameter for EventSource. */
+/**
+ * The token's header. The page itself needs no token: its first load traded the token for an
+ * HttpOnly cookie its requests carry. Other clients (scripts, tests) send this header.
+ */
 export const TOKEN_HEADER = 'x-loopwise-token';
 
 interface EventSourceLike {
@@ -247,18 +250,21 @@ interface EventSourceLike {
 export interface HttpClientOptions {
   /** e.g. 'http://127.0.0.1:5123' or '' for the page's own origin. */
   base: string;
-  token: string;
+  /** Sent as a header when given; the page leaves it out and relies on its cookie. */
+  token?: string | null;
   fetch?: typeof fetch;
-  eventSource?: (url: string) => EventSourceLike;
+  /** Opens the event stream (default the browser's EventSource, which sends the cookie). */
+  eventSource?: (url: string, headers: Record<string, string>) => EventSourceLike;
 }
 
 /** The LoopwiseDoor over loopback HTTP: POST /api/<method> with a JSON array of arguments; progress by SSE. */
 export function createHttpClient(opts: HttpClientOptions): LoopwiseDoor {
   const doFetch = opts.fetch ?? ((input: RequestInfo | URL, init?: RequestInit) => fetch(input, init));
+  const tokenHeaders: Record<string, string> = opts.token ? { [TOKEN_HEADER]: opts.token } : {};
   const call = async <T>(method: string, args: unknown[]): Promise<T> => {
     const res = await doFetch(`${opts.base}/api/${method}`, {
       method: 'POST',
-      headers: { 'content-type': 'application/json', [TOKEN_HEADER]: opts.token },
+      headers: { 'content-type': 'application/json', ...tokenHeaders },
       body: JSON.stringify(args),
     });
     const text = await res.text();
@@ -282,8 +288,10 @@ export function createHttpClient(opts: HttpClientOptions): LoopwiseDoor {
   const listeners = new Set<(e: ProgressEvent) => void>();
   let source: EventSourceLike | null = null;
   const openSource = () => {
-    const url = `${opts.base}/api/events?token=${encodeURIComponent(opts.token)}`;
-    source = opts.eventSource ? opts.eventSource(url) : (new EventSource(url) as unknown as EventSourceLike);
+    const url = `${opts.base}/api/events`;
+    source = opts.eventSource
+      ? opts.eventSource(url, tokenHeaders)
+      : (new EventSource(url) as unknown as EventSourceLike);
     source.onmessage = (e) => {
       const event = JSON.parse(e.data) as ProgressEvent;
       for (const l of listeners) l(event);

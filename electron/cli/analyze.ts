@@ -49,7 +49,8 @@ Finished subjects are cached (DIR/.loopwise-cache, or --cache): a run that is in
 where it stopped, and a re-run that changes only statistics settings recomputes nothing.
 
 options:
-  --out DIR             output folder (refused if it holds files, unless --force)
+  --out DIR             output folder; its manifest lists the files Loopwise owns there; the
+                        same command resumes an unfinished run (see README, The output folder)
 cohort and readers (as for 'loopwise validate'):
   --participants FILE   participants table (default COHORT_DIR/participants.tsv)
   --nodes FILE          node table: label, network, x, y, z (default COHORT_DIR/nodes.tsv if present)
@@ -90,7 +91,8 @@ run:
   --workers K           worker threads (default: the number of cores, here ${availableParallelism()})
   --shard K/M           compute only share K of M (subjects K, K+M, K+2M, …); then 'loopwise merge DIR'
   --cache DIR           cache folder (default OUT/.loopwise-cache)
-  --force               replace Loopwise's tables in a non-empty DIR (other files are left alone)
+  --force               replace a finished run, or write beside files Loopwise did not make
+                        (a file of a table's name that Loopwise did not write is never replaced)
   --csv                 write .csv instead of .tsv
 
 exit code: 0 tables written; 1 no subject analysed; 2 usage error, unknown column, refused
@@ -247,7 +249,14 @@ export const STATISTICS_STAGE = '(statistics)';
  */
 export function exitCodeOf(s: RunSummary, statisticsAsked = false): number {
   if (s.status === 'cancelled') return 130;
-  if (!(s.status === 'done' && (s.analysed ?? s.computed + s.reused) > 0)) return 1;
+  const analysed = (s.analysed ?? s.computed + s.reused) > 0;
+  // A run fails as a whole when a stage fails; when the statistics stage alone failed, every other
+  // table is written, and exit 3 says exactly that.
+  const stageFailures = s.failures.filter((f) => f.subject === '' || /^\(.*\)$/.test(f.subject));
+  const onlyStatistics =
+    stageFailures.length > 0 && stageFailures.every((f) => f.subject === STATISTICS_STAGE);
+  if (s.status === 'failed' && analysed && onlyStatistics) return 3;
+  if (!(s.status === 'done' && analysed)) return 1;
   return statisticsAsked && statisticsMissing(s) ? 3 : 0;
 }
 
@@ -291,8 +300,9 @@ export async function analyzeCommand(args: string[], io: CliIO): Promise<number>
     unlisten();
     await service.close();
     io.err(`${prefix}: ${e instanceof Error ? e.message : String(e)}\n`);
-    // A refused output folder, a cohort that cannot be opened, invalid settings: all input errors.
-    return 2;
+    // A refused output folder, a cohort that cannot be opened, invalid settings: all input errors;
+    // a folder that cannot take the writes (full disk, read-only) is a failed job.
+    return e instanceof Error && e.name === 'WriteError' ? 1 : 2;
   }
   let interrupts = 0;
   const onSigint = (): void => {

@@ -145,7 +145,9 @@ export class Session {
     await this.attempt(async () => {
       this.summary = await this.door.runSummary(runId);
       if (this.summary) this.failures = mergeFailures(this.failures, this.summary.failures);
-      if (this.summary?.status === 'done') this.results = await this.door.cohortResults(runId);
+      // A failed run may still hold what its earlier stages made (e.g. features without statistics).
+      if (this.summary && this.summary.status !== 'cancelled')
+        this.results = await this.door.cohortResults(runId);
     });
   }
 
