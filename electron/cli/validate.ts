@@ -83,7 +83,11 @@ export function formatReport(r: CohortReport): string {
   const out: string[] = [];
   out.push(`cohort ${r.root}`);
   out.push(`  regions (N): ${r.n ?? 'none readable'}`);
-  out.push(`  subjects: ${usable} usable of ${r.subjects.length}`);
+  if (r.sessions) {
+    const participants = new Set(r.subjects.map((s) => s.participant)).size;
+    out.push(`  scans: ${usable} usable of ${r.subjects.length} (${participants} participants)`);
+    out.push(`  sessions: ${r.sessions.join(', ')}`);
+  } else out.push(`  subjects: ${usable} usable of ${r.subjects.length}`);
   if (r.columns.length > 0) {
     const cols = r.columns.map(
       (c) =>
