@@ -559,13 +559,10 @@ function reduceCohomology(
   let apparent = 0;
 
   /**
-   * Pushes every coface of simplex (idx, diam) with diameter ≤ threshold, enumerated in decreasing
-   * index (w descending). With `emergentCheck`, the first coface of the simplex's own diameter is,
-   * among the cofaces of least diameter, the one of largest index: the column's pivot before any
-   * reduction. If no earlier column holds that pivot, the reduction stops at once (an emergent
-   * pair, of zero length): the enumeration stops and that coface is returned. Otherwise −1.
+   * Cofaces of simplex (idx, diam) with diameter ≤ threshold, enumerated in decreasing index
+   * (w descending): calls `visit(diameter, index)` for each until it returns true; returns that index, or −1.
    */
-  const pushCofaces = (idx: number, diam: number, emergentCheck: boolean): number => {
+  const scanCofaces = (idx: number, diam: number, visit: (dm: number, cof: number) => boolean): number => {
     ctx.vertices(idx, k, vs);
     let above = 0;
     let below = idx;
@@ -584,18 +581,30 @@ function reduceCohomology(
       }
       if (dm > threshold) continue;
       const cof = above + ctx.choose(w, k - j + 1) + below;
-      if (emergentCheck && dm === diam) {
-        if (!pivotOf.has(cof)) return cof;
-        emergentCheck = false;
-      }
-      coboundary.push(dm, cof);
+      if (visit(dm, cof)) return cof;
     }
     return -1;
+  };
+  const pushCoface = (dm: number, cof: number): boolean => {
+    coboundary.push(dm, cof);
+    return false;
+  };
+  let sameDiam = 0;
+  const isSameDiam = (dm: number): boolean => dm === sameDiam;
+  /**
+   * The first coface of a simplex's own diameter is, among the cofaces of least diameter, the one
+   * of largest index: the column's pivot before any reduction. If no earlier column holds that
+   * pivot, the column pairs with it at once (an emergent pair, of zero length): that coface, else −1.
+   */
+  const emergentCoface = (idx: number, diam: number): number => {
+    sameDiam = diam;
+    const cof = scanCofaces(idx, diam, isSameDiam);
+    return cof >= 0 && !pivotOf.has(cof) ? cof : -1;
   };
   /** Adds simplex (idx, diam) to the working reduction and its coboundary to the working column. */
   const add = (idx: number, diam: number): void => {
     added.push(diam, idx);
-    pushCofaces(idx, diam, false);
+    scanCofaces(idx, diam, pushCoface);
   };
   const keep = (bi: number, bd: number, di: number, dd: number): void => {
     if (dd > bd || keepZeroLength) pairs.add(bi, bd, di, dd);
@@ -605,16 +614,18 @@ function reduceCohomology(
     if (c % watch.every === 0) watch.poll('reduction', dim, c, total);
     const sIdx = colIdx[c];
     const sDiam = colDiam[c];
-    coboundary.clear();
-    added.clear();
-    // Shortcut 1 (emergent pair): the column's first coface is nobody's pivot yet.
-    const emergent = pushCofaces(sIdx, sDiam, true);
+    // Shortcut 1 (emergent pair): the column's first coface is nobody's pivot yet; found
+    // by a scan that stops there, before any coface is pushed.
+    const emergent = emergentCoface(sIdx, sDiam);
     if (emergent >= 0) {
       pivotOf.set(emergent, c);
       keep(sIdx, sDiam, emergent, sDiam);
       apparent++;
       continue;
     }
+    coboundary.clear();
+    added.clear();
+    scanCofaces(sIdx, sDiam, pushCoface);
     let paired = false;
     let additions = 0;
     while (coboundary.settle()) {
