@@ -305,11 +305,13 @@ interface Columns {
   diam: Float64Array;
 }
 
-/** Shared lookups: dense distances, binomials, vertex decoding, coface enumeration. */
+/**
+ * Shared lookups: distances, binomials, vertex decoding, coface enumeration. The distances stay
+ * the caller's compressed lower triangle (no dense copy): d(i, j) for i > j is values[row(i) + j].
+ */
 class Context {
   readonly n: number;
-  readonly dist: Float64Array; // n × n, dense, for fast lookups in the hot loops
-  readonly values: Float64Array; // the compressed lower triangle: the diameter of edge e is values[e]
+  readonly values: Float64Array; // the diameter of edge e is values[e]
   readonly binom: Float64Array;
   readonly threshold: number;
   private readonly stride: number;
@@ -323,14 +325,11 @@ class Context {
     this.threshold = Number.isFinite(threshold) ? threshold : Number.MAX_VALUE;
     this.binom = binomialTable(n, kMax);
     this.stride = n + 1;
-    this.dist = new Float64Array(n * n);
-    let k = 0;
-    for (let i = 0; i < n; i++) {
-      for (let j = 0; j < i; j++, k++) {
-        this.dist[i * n + j] = values[k];
-        this.dist[j * n + i] = values[k];
-      }
-    }
+  }
+
+  /** Where row i of the compressed lower triangle starts: d(i, j) = values[row(i) + j] for j < i. */
+  row(i: number): number {
+    return (i * (i - 1)) / 2;
   }
 
   choose(v: number, k: number): number {
@@ -379,7 +378,7 @@ class Context {
    * diameter already exceeds the threshold.
    */
   simplicesAbove(dim: number, pivots: IndexMap, watch: Watch): Columns {
-    const { n, dist, threshold } = this;
+    const { n, values, threshold } = this;
     const k = dim + 1; // vertices of a dim-simplex
     let idxOut = new Float64Array(1 << 12);
     let diamOut = new Float64Array(1 << 12);
@@ -393,7 +392,7 @@ class Context {
         if (depth === 0) watch.poll('columns', dim + 1, n - 1 - v, n);
         let dm = diamSoFar;
         for (let q = 0; q < depth; q++) {
-          const x = dist[stack[q] * n + v];
+          const x = values[this.row(stack[q]) + v]; // stack[q] > v
           if (x > dm) dm = x;
         }
         if (dm > threshold) continue;
@@ -541,7 +540,7 @@ function reduceCohomology(
   keepZeroLength: boolean,
   watch: Watch,
 ): Reduction {
-  const { n, dist, threshold } = ctx;
+  const { n, values, threshold } = ctx;
   const { idx: colIdx, diam: colDiam } = cols;
   const total = colIdx.length;
   const k = dim + 1; // vertices of a column simplex
@@ -556,6 +555,7 @@ function reduceCohomology(
   const coboundary = new EntryHeap(); // the working column: cofaces of the simplices added
   const added = new EntryHeap(256); // the simplices added, mod 2 once drained
   const vs = new Int32Array(k);
+  const rows = new Float64Array(k); // rows[q] = row(vs[q])
   let apparent = 0;
 
   /**
@@ -564,6 +564,7 @@ function reduceCohomology(
    */
   const scanCofaces = (idx: number, diam: number, visit: (dm: number, cof: number) => boolean): number => {
     ctx.vertices(idx, k, vs);
+    for (let q = 0; q < k; q++) rows[q] = ctx.row(vs[q]);
     let above = 0;
     let below = idx;
     let j = 0; // vs[j] is the next vertex of the simplex at or below w
@@ -574,9 +575,15 @@ function reduceCohomology(
         j++;
         continue;
       }
+      // Vertices vs[0..j-1] lie above w, the others below: no comparison per lookup.
       let dm = diam;
-      for (let q = 0; q < k; q++) {
-        const x = dist[vs[q] * n + w];
+      for (let q = 0; q < j; q++) {
+        const x = values[rows[q] + w];
+        if (x > dm) dm = x;
+      }
+      const rowW = ctx.row(w);
+      for (let q = j; q < k; q++) {
+        const x = values[rowW + vs[q]];
         if (x > dm) dm = x;
       }
       if (dm > threshold) continue;
@@ -690,7 +697,7 @@ function cycleRepresentatives(
   isMstEdge: Uint8Array,
   watch: Watch,
 ): CycleRepresentative[] {
-  const { n, dist, values } = ctx;
+  const { n, values } = ctx;
   const { pairs } = red;
   // partner: birth edge → death triangle, for every pair of dimension 1 (zero length included).
   const deathOfEdge = new Float64Array(values.length).fill(-1);
@@ -703,7 +710,8 @@ function cycleRepresentatives(
 
   // Latest edge first: the heap orders by (−diam, −index), i.e. diam descending, index ascending.
   const pushEdge = (heap: EntryHeap, p: number, q: number): void => {
-    heap.push(-dist[p * n + q], -((p * (p - 1)) / 2 + q));
+    const e = ctx.row(p) + q;
+    heap.push(-values[e], -e);
   };
   const pushBoundary = (heap: EntryHeap, tri: number): void => {
     ctx.vertices(tri, 3, tv);

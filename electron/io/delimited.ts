@@ -286,7 +286,9 @@ export async function readDelimited(
 
 function streamPapa(file: string, delimiter: string, sink: RowSink): Promise<void> {
   return new Promise((resolve, reject) => {
-    const stream = createReadStream(file, { encoding: 'utf8', highWaterMark: 1 << 20 });
+    // 64 KiB chunks: each chunk's cells are garbage once pushed; bigger chunks keep more of them
+    // alive at once and grow the young generation (a 10 MB matrix peaked 20 MB higher with 1 MiB).
+    const stream = createReadStream(file, { encoding: 'utf8', highWaterMark: 1 << 16 });
     let failed: unknown = null;
     let first = true;
     stream.on('error', (e) => reject(fsError(file, e)));
