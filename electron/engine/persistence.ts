@@ -560,9 +560,12 @@ function reduceCohomology(
 
   /**
    * Cofaces of simplex (idx, diam) with diameter ≤ threshold, enumerated in decreasing index
-   * (w descending): calls `visit(diameter, index)` for each until it returns true; returns that index, or −1.
+   * (w descending). Pushes them all onto the working column; or, with `findFirst`, pushes nothing
+   * and returns the first of the simplex's own diameter (−1 if none): among the cofaces of least
+   * diameter the one of largest index, the column's pivot before any reduction.
+   * (A flag, not a callback: a call per coface through a function value would box its numbers.)
    */
-  const scanCofaces = (idx: number, diam: number, visit: (dm: number, cof: number) => boolean): number => {
+  const scanCofaces = (idx: number, diam: number, findFirst: boolean): number => {
     ctx.vertices(idx, k, vs);
     for (let q = 0; q < k; q++) rows[q] = ctx.row(vs[q]);
     let above = 0;
@@ -588,30 +591,20 @@ function reduceCohomology(
       }
       if (dm > threshold) continue;
       const cof = above + ctx.choose(w, k - j + 1) + below;
-      if (visit(dm, cof)) return cof;
+      if (!findFirst) coboundary.push(dm, cof);
+      else if (dm === diam) return cof;
     }
     return -1;
   };
-  const pushCoface = (dm: number, cof: number): boolean => {
-    coboundary.push(dm, cof);
-    return false;
-  };
-  let sameDiam = 0;
-  const isSameDiam = (dm: number): boolean => dm === sameDiam;
-  /**
-   * The first coface of a simplex's own diameter is, among the cofaces of least diameter, the one
-   * of largest index: the column's pivot before any reduction. If no earlier column holds that
-   * pivot, the column pairs with it at once (an emergent pair, of zero length): that coface, else −1.
-   */
+  /** Shortcut 1 (emergent pair): the column's first coface is nobody's pivot yet: that coface, else −1. */
   const emergentCoface = (idx: number, diam: number): number => {
-    sameDiam = diam;
-    const cof = scanCofaces(idx, diam, isSameDiam);
+    const cof = scanCofaces(idx, diam, true);
     return cof >= 0 && !pivotOf.has(cof) ? cof : -1;
   };
   /** Adds simplex (idx, diam) to the working reduction and its coboundary to the working column. */
   const add = (idx: number, diam: number): void => {
     added.push(diam, idx);
-    scanCofaces(idx, diam, pushCoface);
+    scanCofaces(idx, diam, false);
   };
   const keep = (bi: number, bd: number, di: number, dd: number): void => {
     if (dd > bd || keepZeroLength) pairs.add(bi, bd, di, dd);
@@ -621,8 +614,7 @@ function reduceCohomology(
     if (c % watch.every === 0) watch.poll('reduction', dim, c, total);
     const sIdx = colIdx[c];
     const sDiam = colDiam[c];
-    // Shortcut 1 (emergent pair): the column's first coface is nobody's pivot yet; found
-    // by a scan that stops there, before any coface is pushed.
+    // Shortcut 1 (emergent pair), found by a scan that stops there, before any coface is pushed.
     const emergent = emergentCoface(sIdx, sDiam);
     if (emergent >= 0) {
       pivotOf.set(emergent, c);
@@ -632,7 +624,7 @@ function reduceCohomology(
     }
     coboundary.clear();
     added.clear();
-    scanCofaces(sIdx, sDiam, pushCoface);
+    scanCofaces(sIdx, sDiam, false);
     let paired = false;
     let additions = 0;
     while (coboundary.settle()) {
