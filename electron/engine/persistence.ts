@@ -558,14 +558,19 @@ function reduceCohomology(
   const rows = new Float64Array(k); // rows[q] = row(vs[q])
   let apparent = 0;
 
+  // Simplices are passed as (array, position), and a found coface comes back in found[0]: a double
+  // passed to or returned from a call that is not inlined is boxed, a heap allocation per column.
+  const found = new Float64Array(1);
   /**
-   * Cofaces of simplex (idx, diam) with diameter ≤ threshold, enumerated in decreasing index
-   * (w descending). Pushes them all onto the working column; or, with `findFirst`, pushes nothing
-   * and returns the first of the simplex's own diameter (−1 if none): among the cofaces of least
-   * diameter the one of largest index, the column's pivot before any reduction.
-   * (A flag, not a callback: a call per coface through a function value would box its numbers.)
+   * Cofaces of simplex src[at] (diameter srcDiam[at]) with diameter ≤ threshold, enumerated in
+   * decreasing index (w descending). Pushes them all onto the working column; or, with
+   * `findFirst`, pushes nothing and stops at the first of the simplex's own diameter (into
+   * found[0], returning true): among the cofaces of least diameter the one of largest index, the
+   * column's pivot before any reduction.
    */
-  const scanCofaces = (idx: number, diam: number, findFirst: boolean): number => {
+  const scanCofaces = (src: Float64Array, srcDiam: Float64Array, at: number, findFirst: boolean): boolean => {
+    const idx = src[at];
+    const diam = srcDiam[at];
     ctx.vertices(idx, k, vs);
     for (let q = 0; q < k; q++) rows[q] = ctx.row(vs[q]);
     let above = 0;
@@ -591,20 +596,19 @@ function reduceCohomology(
       }
       if (dm > threshold) continue;
       const cof = above + ctx.choose(w, k - j + 1) + below;
-      if (!findFirst) coboundary.push(dm, cof);
-      else if (dm === diam) return cof;
+      if (!findFirst) {
+        coboundary.push(dm, cof);
+      } else if (dm === diam) {
+        found[0] = cof;
+        return true;
+      }
     }
-    return -1;
+    return false;
   };
-  /** Shortcut 1 (emergent pair): the column's first coface is nobody's pivot yet: that coface, else −1. */
-  const emergentCoface = (idx: number, diam: number): number => {
-    const cof = scanCofaces(idx, diam, true);
-    return cof >= 0 && !pivotOf.has(cof) ? cof : -1;
-  };
-  /** Adds simplex (idx, diam) to the working reduction and its coboundary to the working column. */
-  const add = (idx: number, diam: number): void => {
-    added.push(diam, idx);
-    scanCofaces(idx, diam, false);
+  /** Adds simplex src[at] to the working reduction and its coboundary to the working column. */
+  const add = (src: Float64Array, srcDiam: Float64Array, at: number): void => {
+    added.push(srcDiam[at], src[at]);
+    scanCofaces(src, srcDiam, at, false);
   };
   const keep = (bi: number, bd: number, di: number, dd: number): void => {
     if (dd > bd || keepZeroLength) pairs.add(bi, bd, di, dd);
@@ -612,19 +616,19 @@ function reduceCohomology(
 
   for (let c = 0; c < total; c++) {
     if (c % watch.every === 0) watch.poll('reduction', dim, c, total);
-    const sIdx = colIdx[c];
-    const sDiam = colDiam[c];
-    // Shortcut 1 (emergent pair), found by a scan that stops there, before any coface is pushed.
-    const emergent = emergentCoface(sIdx, sDiam);
-    if (emergent >= 0) {
-      pivotOf.set(emergent, c);
-      keep(sIdx, sDiam, emergent, sDiam);
+    // Shortcut 1 (emergent pair): the column's first coface is nobody's pivot yet; found by a
+    // scan that stops there, before any coface is pushed. The pair has length zero.
+    if (scanCofaces(colIdx, colDiam, c, true) && !pivotOf.has(found[0])) {
+      pivotOf.set(found[0], c);
+      if (keepZeroLength) pairs.add(colIdx[c], colDiam[c], found[0], colDiam[c]);
       apparent++;
       continue;
     }
+    const sIdx = colIdx[c];
+    const sDiam = colDiam[c];
     coboundary.clear();
     added.clear();
-    scanCofaces(sIdx, sDiam, false);
+    scanCofaces(colIdx, colDiam, c, false);
     let paired = false;
     let additions = 0;
     while (coboundary.settle()) {
@@ -637,8 +641,8 @@ function reduceCohomology(
         break;
       }
       // Add column `other`: its own coboundary and those of the simplices in its reduction.
-      add(colIdx[other], colDiam[other]);
-      for (let s = reductionOf.get(other); s >= 0 && vIdx[s] >= 0; s++) add(vIdx[s], vDiam[s]);
+      add(colIdx, colDiam, other);
+      for (let s = reductionOf.get(other); s >= 0 && vIdx[s] >= 0; s++) add(vIdx, vDiam, s);
       // A single column can take long: poll within it too.
       if (++additions % watch.every === 0) watch.poll('reduction', dim, c, total);
     }
