@@ -11,9 +11,11 @@
  *   group-curves.tsv    group, curve, dimension, grid_value, mean, lower, upper   (bootstrap 95% band)
  *   group-intervals.tsv group, dimension, birth, death, nodes
  *   group-nodes.tsv     group, node, label, network, measure, value
- *   stats.tsv, diagram-tests.tsv, embedding.tsv   (with --group)
+ *   stats.tsv, excluded-features.tsv, diagram-tests.tsv, embedding.tsv   (with --group, --effect or --model)
+ * Where the cohort has sessions, every per-scan table has a `session` column right after
+ * participant_id (which then holds the participant, shared by its scans).
  */
-import type { CohortReport, CurveBand, NodeInfo, SubjectEntry, Table } from '../api.ts';
+import type { CohortReport, CurveBand, NodeInfo, StatsSettings, SubjectEntry, Table } from '../api.ts';
 import {
   curveBands,
   featureTable,
@@ -28,13 +30,13 @@ import {
 import type { FeatureRow } from '../engine/features/index.ts';
 import { computePersistence } from '../engine/persistence.ts';
 import { buildDesign } from '../engine/stats/design.ts';
-import type { Design } from '../engine/stats/design.ts';
+import type { Design, DesignSpec, DesignSubject } from '../engine/stats/design.ts';
 import { diagramDistanceMatrix, metricName } from '../engine/stats/diagram-distance.ts';
 import type { DiagramMetric } from '../engine/stats/diagram-distance.ts';
-import { jointLossTest, permanova } from '../engine/stats/diagram-tests.ts';
+import { distanceRegression, jointLossTest } from '../engine/stats/diagram-tests.ts';
 import { classicalMds, umapEmbedding } from '../engine/stats/embedding.ts';
 import { testFamily } from '../engine/stats/family.ts';
-import type { FamilyResult, FeatureFamily } from '../engine/stats/family.ts';
+import type { FamilyFeature, FamilyResult, FeatureFamily } from '../engine/stats/family.ts';
 import { diagramTestsTable, statsTable } from '../engine/stats/tables.ts';
 import type { DiagramTestEntry } from '../engine/stats/tables.ts';
 import { toDistances } from '../engine/transform.ts';
@@ -87,15 +89,22 @@ export function cohortStages(): RunHooks {
     return entries.get(id);
   };
   const groupOf = (ctx: StageContext, id: string): string | null => {
-    const col = ctx.stats.groupColumn;
+    const col = groupingColumn(ctx);
     if (!col) return null;
     const v = entryOf(ctx, id)?.covariates[col];
     return v === null || v === undefined ? null : String(v);
   };
+  /** participant_id, and session where the cohort has sessions: the first cells of a scan's rows. */
+  const scanCells = (ctx: StageContext, id: string): Array<string | null> => {
+    const e = entryOf(ctx, id);
+    return ctx.report.sessions ? [e?.participant ?? id, e?.session ?? null] : [e?.participant ?? id];
+  };
+  const scanColumns = (ctx: StageContext): string[] =>
+    ctx.report.sessions ? ['participant_id', 'session'] : ['participant_id'];
 
   return {
     async groupFiltrations(ctx) {
-      const col = ctx.stats.groupColumn;
+      const col = groupingColumn(ctx);
       if (!col) return {};
       const settings = ctx.run.settings;
       const groups = new Map<string, SubjectEntry[]>();
@@ -176,14 +185,14 @@ export function cohortStages(): RunHooks {
       curveRows = [];
       diagramsBySubject = [];
       const curvesSink = await ctx.openTable('curves', [
-        'participant_id',
+        ...scanColumns(ctx),
         'curve',
         'dimension',
         'grid_value',
         'value',
       ]);
       const nodesSink = await ctx.openTable('nodes', [
-        'participant_id',
+        ...scanColumns(ctx),
         'node',
         'label',
         'network',
@@ -192,13 +201,13 @@ export function cohortStages(): RunHooks {
       ]);
       const withNetworks = ctx.report.nodes?.some((x) => x.network !== null) ?? false;
       const networksSink = withNetworks
-        ? await ctx.openTable('networks', ['participant_id', 'network', 'measure', 'mean', 'nodes'])
+        ? await ctx.openTable('networks', [...scanColumns(ctx), 'network', 'measure', 'mean', 'nodes'])
         : null;
       const sinks = [curvesSink, nodesSink, ...(networksSink ? [networksSink] : [])];
       // The renderer gets the long node table in its results up to this size (the file has all rows).
       const RESULT_NODE_ROWS = 1_000_000;
       const nodesForResults: Table = {
-        columns: ['participant_id', 'node', 'label', 'network', 'measure', 'value'],
+        columns: [...scanColumns(ctx), 'node', 'label', 'network', 'measure', 'value'],
         rows: [],
       };
       let done = 0;
@@ -221,13 +230,15 @@ export function cohortStages(): RunHooks {
           const kept = keptRegions(nRead, settings.dropRegions);
           const scores = maskDropped(subjectNodeScores(r, settings), kept, nRead);
           nodeScores.push({ subject: rec.id, scores });
-          for (const row of nodeScoreTable([{ subject: rec.id, scores }], ctx.report.nodes).rows) {
+          const cells = scanCells(ctx, rec.id);
+          for (const scored of nodeScoreTable([{ subject: rec.id, scores }], ctx.report.nodes).rows) {
+            const row = [...cells, ...scored.slice(1)];
             await nodesSink.row(row);
             if (nodesForResults.rows.length < RESULT_NODE_ROWS) nodesForResults.rows.push(row);
           }
           if (networksSink) {
             for (const row of networkScoreTable([{ subject: rec.id, scores }], ctx.report.nodes).rows) {
-              await networksSink.row(row);
+              await networksSink.row([...cells, ...row.slice(1)]);
             }
           }
           const curves = subjectCurves(r, gridValues, settings, distances ?? undefined);
@@ -235,7 +246,7 @@ export function cohortStages(): RunHooks {
           for (const [name, values] of Object.entries(curves)) {
             const dim = curveDimension(name);
             for (let i = 0; i < values.length; i++)
-              await curvesSink.row([rec.id, name, dim, gridValues[i], values[i]]);
+              await curvesSink.row([...cells, name, dim, gridValues[i], values[i]]);
           }
           done++;
         }
@@ -284,17 +295,18 @@ export function cohortStages(): RunHooks {
     },
 
     async statistics(ctx) {
-      const col = ctx.stats.groupColumn;
-      if (!col || featureRows.length === 0) return {};
+      const st = ctx.stats;
+      if (!(st.groupColumn || st.effect || st.model) || featureRows.length === 0) return {};
+      // A DesignError (unknown column, one level, repeated participants without blocks, …) fails the stage with its message.
       const design: Design = buildDesign(
         featureRows.flatMap((f) => {
           const s = entryOf(ctx, f.subject);
-          return s ? [{ id: s.id, covariates: s.covariates }] : [];
+          return s ? [designRow(s)] : [];
         }),
-        { groupColumn: col, covariates: ctx.stats.covariates },
+        designSpec(st),
       );
       const subjects = featureRows.map((f) => f.subject);
-      const families = buildFamilies(
+      const { families, excluded } = buildFamilies(
         subjects,
         featureRows,
         nodeScores,
@@ -303,24 +315,46 @@ export function cohortStages(): RunHooks {
         ctx.report.nodes,
       );
       const results: FamilyResult[] = [];
-      const options = { permutations: ctx.stats.permutations, seed: ctx.stats.seed };
+      const options = { permutations: st.permutations, seed: st.seed };
       let done = 0;
       for (const family of families) {
         if (ctx.cancelled()) return {};
         ctx.progress('statistics', done++, families.length + 1, family.name);
         if (family.features.length === 0) continue;
-        for (const contrast of design.contrasts) results.push(testFamily(design, contrast, family, options));
+        for (const contrast of design.contrasts) {
+          const r = testFamily(design, contrast, family, options);
+          results.push(r);
+          for (const x of r.excluded) excluded.push({ family: family.name, ...x });
+        }
       }
       const { table: stats, warnings } = statsTable(results);
+      warnings.unshift(...design.notes);
+      if (design.excluded.length > 0) {
+        warnings.unshift(
+          `${design.excluded.length} scan(s) left out of the design: ${design.excluded.map((x) => `${x.id} (${x.reason})`).join(', ')}`,
+        );
+      }
       await ctx.writeTable('stats', stats);
+      await ctx.writeTable('excluded-features', {
+        columns: ['family', 'feature', 'node_or_point', 'reason'],
+        rows: excluded.map((x) => [x.family, x.feature, x.nodeOrPoint, x.reason]),
+      });
 
       // Whole-diagram tests and the subject map, per dimension.
       ctx.progress('statistics', families.length, families.length + 1, 'diagram tests');
       const position = new Map(subjects.map((s, i) => [s, i]));
       const idx = design.ids.map((id) => position.get(id)!);
-      const groupSizes = design.levels.map((level, g) => ({ level, n: design.groupSizes[g] }));
+      const groupSizes =
+        design.levels.length > 0
+          ? design.levels.map((level, g) => ({ level, n: design.groupSizes[g] }))
+          : [{ level: 'all', n: design.ids.length }];
       const metric: DiagramMetric =
         idx.length <= 60 ? { kind: 'wasserstein', p: 2 } : { kind: 'sliced-wasserstein' };
+      // The joint loss compares groups only: a categorical effect without covariates or blocks.
+      const jointLoss =
+        design.effect.kind === 'categorical' &&
+        !design.exchangeability &&
+        design.columns.length === design.levels.length;
       const entries: DiagramTestEntry[] = [];
       let embedding: StageOutput['embedding'] = null;
       for (let d = 0; d < (diagramsBySubject[0]?.length ?? 0); d++) {
@@ -328,24 +362,53 @@ export function cohortStages(): RunHooks {
           idx.map((i) => diagramsBySubject[i][d]),
           metric,
         );
-        for (const test of [jointLossTest(dm, design.group, options), permanova(dm, design.group, options)]) {
-          entries.push({ family: `H${d}`, metric: metricName(metric), result: test, groupSizes });
+        const tests = [
+          ...(jointLoss ? [jointLossTest(dm, design.group, options)] : []),
+          ...design.contrasts.map((c) =>
+            distanceRegression(dm, design.columns, c, {
+              ...options,
+              exchangeability: design.exchangeability,
+              invariantColumns: design.blockColumns,
+            }),
+          ),
+        ];
+        for (const test of tests) {
+          entries.push({
+            family: `H${d}`,
+            metric: metricName(metric),
+            result: test,
+            groupSizes,
+            effect: design.effect.term,
+          });
         }
         if (d === 1 || (d === 0 && diagramsBySubject[0].length === 1))
-          embedding = subjectMap(dm, design, ctx.stats.seed);
+          embedding = subjectMap(dm, design, st.seed);
       }
       const diagramTests = diagramTestsTable(entries);
       await ctx.writeTable('diagram-tests', diagramTests);
       if (embedding) {
+        // participant_id, then session where the cohort has sessions (the scan rows' shared layout).
         await ctx.writeTable('embedding', {
-          columns: ['participant_id', 'group', 'method', 'x', 'y'],
-          rows: embedding.map((e) => [e.subject, e.group, e.method, e.x, e.y]),
+          columns: [...scanColumns(ctx), 'group', 'method', 'x', 'y'],
+          rows: embedding.map((e) => [...scanCells(ctx, e.subject), e.group, e.method, e.x, e.y]),
         });
       }
       if (warnings.length > 0) await ctx.writeJson('stats-warnings.json', warnings);
       return { stats, diagramTests, embedding };
     },
   };
+}
+
+/** The column scans are grouped by (group curves, group filtrations): --group, or an --effect holding text. */
+function groupingColumn(ctx: StageContext): string | null {
+  const { groupColumn, effect } = ctx.stats;
+  if (groupColumn) return groupColumn;
+  if (!effect) return null;
+  const categorical = ctx.report.subjects.some((s) => {
+    const v = s.covariates[effect];
+    return v !== null && v !== undefined && typeof v !== 'number';
+  });
+  return categorical ? effect : null;
 }
 
 /** The subject's distances as the filtration saw them (regions dropped, transform applied), or null when unreadable. */
@@ -438,23 +501,59 @@ function curveDimension(name: string): number | null {
   return m ? Number(m[1]) : null;
 }
 
-/** participant_id, then the participants table's columns, then the features. */
+/** participant_id (and session where the cohort has sessions), then the covariate columns, then the features. */
 function withParticipants(features: Table, report: CohortReport): Table {
-  const cols = report.columns.map((c) => c.name).filter((c) => c !== 'participant_id');
+  const first = report.sessions ? ['participant_id', 'session'] : ['participant_id'];
+  const cols = report.columns.map((c) => c.name).filter((c) => !first.includes(c));
   const byId = new Map(report.subjects.map((s) => [s.id, s]));
   return {
-    columns: ['participant_id', ...cols, ...features.columns.slice(1)],
+    columns: [...first, ...cols, ...features.columns.slice(1)],
     rows: features.rows.map((row) => {
       const s = byId.get(String(row[0]));
-      return [row[0], ...cols.map((c) => s?.covariates[c] ?? null), ...row.slice(1)];
+      const scan = report.sessions
+        ? [s?.participant ?? row[0], s?.session ?? null]
+        : [s?.participant ?? row[0]];
+      return [...scan, ...cols.map((c) => s?.covariates[c] ?? null), ...row.slice(1)];
     }),
   };
 }
 
+/** The statistics settings as a design spec (the group column is the categorical shorthand of the effect). */
+export function designSpec(st: StatsSettings): DesignSpec {
+  return {
+    groupColumn: st.groupColumn,
+    effect: st.effect ?? null,
+    model: st.model ?? null,
+    test: st.test ?? null,
+    reference: st.reference ?? null,
+    blocks: st.blocks ?? null,
+    covariates: st.covariates,
+  };
+}
+
+/** A scan's design row: its covariates, with participant_id (and session) always present. */
+function designRow(s: SubjectEntry): DesignSubject {
+  const covariates = { ...s.covariates };
+  if (covariates.participant_id === undefined || covariates.participant_id === null) {
+    covariates.participant_id = s.participant ?? s.id;
+  }
+  if ((covariates.session === undefined || covariates.session === null) && s.session) {
+    covariates.session = s.session;
+  }
+  return { id: s.id, covariates };
+}
+
+export interface ExcludedFeature {
+  family: string;
+  feature: string;
+  nodeOrPoint: string | number | null;
+  reason: string;
+}
+
 /**
  * The families of the statistics stage: all scalar features together; each node measure over
- * its nodes; each curve over its grid points. A feature that is missing for some subject or
- * constant across subjects cannot be tested and is left out.
+ * its nodes; each curve over its grid points. A feature that is missing or non-finite for some
+ * scan or constant across scans cannot be tested and is left out, listed with its reason.
  */
 function buildFamilies(
   subjects: string[],
@@ -463,29 +562,49 @@ function buildFamilies(
   curveRows: Array<{ subject: string; curves: Record<string, Float64Array> }>,
   gridValues: Float64Array,
   nodes: NodeInfo[] | null,
-): FeatureFamily[] {
-  const testable = (v: ArrayLike<number>): boolean => {
+): { families: FeatureFamily[]; excluded: ExcludedFeature[] } {
+  const excluded: ExcludedFeature[] = [];
+  let current = '';
+  const testable = (f: FamilyFeature): boolean => {
+    const v = f.values;
     let min = Infinity;
     let max = -Infinity;
     for (let i = 0; i < v.length; i++) {
-      if (!Number.isFinite(v[i])) return false;
+      if (!Number.isFinite(v[i])) {
+        excluded.push({
+          family: current,
+          feature: f.feature,
+          nodeOrPoint: f.nodeOrPoint,
+          reason: 'missing or non-finite values',
+        });
+        return false;
+      }
       min = Math.min(min, v[i]);
       max = Math.max(max, v[i]);
     }
-    return max - min > 1e-12 * Math.max(1, Math.abs(max));
+    if (max - min > 1e-12 * Math.max(1, Math.abs(max))) return true;
+    excluded.push({
+      family: current,
+      feature: f.feature,
+      nodeOrPoint: f.nodeOrPoint,
+      reason: 'constant across scans',
+    });
+    return false;
   };
   const families: FeatureFamily[] = [];
   const names = featureRows.length > 0 ? Object.keys(featureRows[0].features) : [];
+  current = 'features';
   families.push({
     name: 'features',
     subjects,
     features: names
       .map((f) => ({ feature: f, nodeOrPoint: null, values: featureRows.map((r) => r.features[f] ?? NaN) }))
-      .filter((f) => testable(f.values)),
+      .filter(testable),
   });
   const measures = nodeScores.length > 0 ? Object.keys(nodeScores[0].scores) : [];
   for (const m of measures) {
     const n = nodeScores[0].scores[m].length;
+    current = `nodes:${m}`;
     families.push({
       name: `nodes:${m}`,
       subjects,
@@ -493,11 +612,12 @@ function buildFamilies(
         feature: m,
         nodeOrPoint: nodes?.[i]?.label ?? i,
         values: nodeScores.map((s) => s.scores[m][i]),
-      })).filter((f) => testable(f.values)),
+      })).filter(testable),
     });
   }
   const curves = curveRows.length > 0 ? Object.keys(curveRows[0].curves) : [];
   for (const c of curves) {
+    current = `curve:${c}`;
     families.push({
       name: `curve:${c}`,
       subjects,
@@ -505,17 +625,17 @@ function buildFamilies(
         feature: c,
         nodeOrPoint: x,
         values: curveRows.map((r) => r.curves[c][i]),
-      })).filter((f) => testable(f.values)),
+      })).filter(testable),
     });
   }
-  return families;
+  return { families, excluded };
 }
 
 function subjectMap(dm: SquareMatrix, design: Design, seed: number): NonNullable<StageOutput['embedding']> {
   const mds = classicalMds(dm);
   const out: NonNullable<StageOutput['embedding']> = mds.coordinates.map(([x, y], i) => ({
     subject: design.ids[i],
-    group: design.levels[design.group[i]],
+    group: design.levels.length > 0 ? design.levels[design.group[i]] : null,
     x,
     y,
     method: 'mds' as const,
@@ -523,7 +643,13 @@ function subjectMap(dm: SquareMatrix, design: Design, seed: number): NonNullable
   if (dm.n >= 10) {
     const umap = umapEmbedding(dm, { seed });
     umap.coordinates.forEach(([x, y], i) =>
-      out.push({ subject: design.ids[i], group: design.levels[design.group[i]], x, y, method: 'umap' }),
+      out.push({
+        subject: design.ids[i],
+        group: design.levels.length > 0 ? design.levels[design.group[i]] : null,
+        x,
+        y,
+        method: 'umap',
+      }),
     );
   }
   return out;

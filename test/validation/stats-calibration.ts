@@ -1,8 +1,8 @@
 /**
  * Calibration and power of Loopwise's group tests (electron/engine/stats), as a report.
  *
- *   npm run validate:stats              # full run: about 1 minute on one core (see README.md)
- *   npm run validate:stats -- --quick   # fewer cohorts: about 15 seconds
+ *   npm run validate:stats              # full run: about 3.5 minutes on one core (see README.md)
+ *   npm run validate:stats -- --quick   # fewer cohorts: about 35 seconds
  *   npm run validate:stats -- --seed 5  # another master seed
  *   npm run validate:stats -- --cohorts 10000  # more null cohorts per setting (part 1)
  *
@@ -23,12 +23,25 @@
  * effect; the same checks), then the power to find each planted node at FWER and FDR 0.05 and the
  * rate of significant unplanted nodes.
  *
+ * Part 3, study designs (design-cohorts.ts): a paired design (session within participant, blocks),
+ * a slope with a covariate, a group × session interaction with blocks, a between-participant group
+ * with two scans each and blocks — each null, with the uncorrected, FWER and BH rates — then the
+ * power on a planted within-participant effect, and the pseudo-replicated analysis (the two scans
+ * of a participant treated as independent rows, no blocks), which the checks must flag as too liberal.
+ *
  * Every check counts one Bernoulli trial per cohort (cohorts are independent; the features of a
  * cohort are not), and its band is the Clopper–Pearson interval (Clopper & Pearson 1934,
  * Biometrika 26; binomial.ts). Verdicts use the Bonferroni-adjusted level over all checks (checks.ts).
  */
 import { checkTable, formatTable, pct, type Check, type Rate } from './checks.ts';
 import { clopperPearson } from './binomial.ts';
+import {
+  PLANTED as DESIGN_PLANTED,
+  POWER_SHIFT,
+  runDesignCohort,
+  type DesignCohortOutcome,
+  type DesignSetting,
+} from './design-cohorts.ts';
 import { runNullCohort, type NullCohortOutcome, type NullSetting } from './null-cohorts.ts';
 import {
   DISTANT_MODULE,
@@ -48,6 +61,8 @@ const FAMILY_SIZE = 30;
 const PER_GROUP_POWER = 12;
 
 interface RunSize {
+  designCohorts: number;
+  designPowerCohorts: number;
   nullCohorts: number;
   nullPermutations: number;
   pipelineNullCohorts: number;
@@ -59,6 +74,8 @@ interface RunSize {
 // BH can reject a single feature only when its p ≤ α/m, which needs 1/(B + 1) ≤ α/m, i.e. B ≥ 599 for m = 30
 // (with B = 499 the smallest p, 0.002, exceeds 0.05/30 and BH finds nothing without company).
 const FULL: RunSize = {
+  designCohorts: 1000,
+  designPowerCohorts: 200,
   nullCohorts: 2000,
   nullPermutations: 999,
   pipelineNullCohorts: 400,
@@ -66,6 +83,8 @@ const FULL: RunSize = {
   pipelinePermutations: 999,
 };
 const QUICK: RunSize = {
+  designCohorts: 150,
+  designPowerCohorts: 40,
   nullCohorts: 200,
   nullPermutations: 999,
   pipelineNullCohorts: 40,
@@ -170,6 +189,90 @@ function resolutionNote(b: number): string {
   return smallest <= needed
     ? `B = ${b}: smallest p ${smallest.toPrecision(3)} ≤ α/m = ${needed.toPrecision(3)}, so BH can reject a lone feature.`
     : `WARNING B = ${b}: smallest p ${smallest.toPrecision(3)} > α/m = ${needed.toPrecision(3)}: BH cannot reject a lone feature, its checks are weak.`;
+}
+
+/** Part 3: study designs with repeated scans, a slope with a covariate, an interaction (design-cohorts.ts). */
+function designSection(master: number, size: RunSize): Check[] {
+  const opts = { alpha: ALPHA, permutations: size.nullPermutations, features: FAMILY_SIZE };
+  console.log(
+    `3. Study designs: ${size.designCohorts} null cohorts per setting, ${FAMILY_SIZE} correlated features, ` +
+      `participant random intercept (ICC 0.69), ${size.nullPermutations} permutations`,
+  );
+  const settings: Array<[string, DesignSetting, number, 'equal' | 'above']> = [
+    ['(f) paired: session within participant', 'paired', 5, 'equal'],
+    ['(g) slope with a covariate', 'slope', 6, 'equal'],
+    ['(h) group × session, blocks', 'interaction', 7, 'equal'],
+    ['(i) group between participants, 2 scans each, blocks', 'between-blocks', 8, 'equal'],
+    // Section 8 again: the same cohorts as (i), analysed without blocks.
+    ['(j) the same, scans as independent rows (no blocks)', 'pseudo-replicated', 8, 'above'],
+  ];
+  const checks: Check[] = [];
+  for (const [label, setting, section, expect] of settings) {
+    const t0 = performance.now();
+    const out: DesignCohortOutcome[] = [];
+    for (let c = 0; c < size.designCohorts; c++) {
+      out.push(runDesignCohort(setting, c, cohortSeed(master, section, c), opts));
+    }
+    console.log(
+      `  ${label}: scheme ${[...new Set(out.map((o) => o.scheme))].join(', ')}; ${out.length} cohorts in ${seconds(t0)}`,
+    );
+    checks.push({
+      setting: label,
+      measure: 'uncorrected p ≤ α (feature c mod 30)',
+      rate: count(out, (o) => o.chosenRejected),
+      expect,
+    });
+    if (expect === 'equal') {
+      checks.push(
+        {
+          setting: label,
+          measure: 'FWER: any p_fwer ≤ α',
+          rate: count(out, (o) => o.anyFwer),
+          expect: 'equal',
+        },
+        { setting: label, measure: 'BH: any q ≤ α', rate: count(out, (o) => o.anyFdr), expect: 'at-most' },
+      );
+    } else {
+      checks.push({
+        setting: label,
+        measure: 'FWER: any p_fwer ≤ α',
+        rate: count(out, (o) => o.anyFwer),
+        expect: 'above',
+      });
+    }
+  }
+  const t0 = performance.now();
+  const power: DesignCohortOutcome[] = [];
+  for (let c = 0; c < size.designPowerCohorts; c++) {
+    power.push(runDesignCohort('paired-power', c, cohortSeed(master, 9, c), opts));
+  }
+  console.log(
+    `  (k) paired, planted session shift of ${POWER_SHIFT} scan-level SD on ${DESIGN_PLANTED} of ${FAMILY_SIZE} features: ` +
+      `${power.length} cohorts in ${seconds(t0)}`,
+  );
+  const rowsOut = Array.from({ length: DESIGN_PLANTED }, (_, j) => [
+    `planted feature ${j}`,
+    cp95(count(power, (o) => o.pUncorrected[j] <= ALPHA)),
+    cp95(count(power, (o) => o.pFwer[j] <= ALPHA)),
+    cp95(count(power, (o) => o.q[j] <= ALPHA)),
+  ]);
+  const nullFeatures = Array.from({ length: FAMILY_SIZE - DESIGN_PLANTED }, (_, k) => k + DESIGN_PLANTED);
+  rowsOut.push([
+    'cohorts with any null feature significant',
+    cp95(count(power, (o) => nullFeatures.some((j) => o.pUncorrected[j] <= ALPHA))),
+    cp95(count(power, (o) => nullFeatures.some((j) => o.pFwer[j] <= ALPHA))),
+    cp95(count(power, (o) => nullFeatures.some((j) => o.q[j] <= ALPHA))),
+  ]);
+  for (const l of formatTable(['', 'p ≤ 0.05 uncorrected', 'p_fwer ≤ 0.05', 'q ≤ 0.05'], rowsOut)) {
+    console.log(`    ${l}`);
+  }
+  checks.push({
+    setting: '(k) paired power',
+    measure: 'FWER: any null feature p_fwer ≤ α',
+    rate: count(power, (o) => nullFeatures.some((j) => o.pFwer[j] <= ALPHA)),
+    expect: 'at-most',
+  });
+  return checks;
 }
 
 function main(): void {
@@ -303,11 +406,15 @@ function main(): void {
   );
   console.log('');
 
+  // Part 3.
+  const design = designSection(seed, size);
+  console.log('');
+
   // Verdicts.
-  const checks = [...plain.checks, ...covariate.checks, ...ignored.checks, ...pipelineChecks];
+  const checks = [...plain.checks, ...covariate.checks, ...ignored.checks, ...pipelineChecks, ...design];
   const { lines, allPass } = checkTable(checks, ALPHA);
   console.log(
-    `3. Calibration checks (one trial per cohort; verdict from the Bonferroni-adjusted band over ${checks.length} checks):`,
+    `4. Calibration checks (one trial per cohort; verdict from the Bonferroni-adjusted band over ${checks.length} checks):`,
   );
   for (const l of lines) console.log(`  ${l}`);
   console.log('');

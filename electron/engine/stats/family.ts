@@ -1,14 +1,23 @@
 /**
  * One family of features tested together: parametric GLM, permutation p (Freedman–Lane or label
- * permutation), max-statistic FWER and Benjamini–Hochberg q within the family, and the effect
- * size (Hedges' g with bootstrap interval for a pair contrast, partial η² for an F contrast).
+ * permutation, restricted to the design's exchangeability blocks), max-statistic FWER and
+ * Benjamini–Hochberg q within the family, and effect sizes from the same model as the test:
+ * partial r (t) and partial η² (every test); for a 2-level effect the covariate-adjusted
+ * standardized difference (cᵀβ̂ / √(residual mean square) of the full model), or d_z for a paired
+ * within-block contrast, each with a seeded bootstrap interval (effect-size.ts).
  * A family is what the correction runs over: e.g. all scalar features, or one node measure over
  * all nodes, or one curve over its grid points.
  *
  *   testFamily(design, design.contrasts[0], { name: 'betti1-curve', subjects, features }, { seed: 7 })
  */
 import type { Contrast, Design } from './design.ts';
-import { hedgesGFamily, partialEtaSquared, type GroupEffectSizes } from './effect-size.ts';
+import {
+  adjustedDifferenceFamily,
+  dzFamily,
+  partialEtaSquared,
+  partialR as partialRFromT,
+  type FamilyEffectSizes,
+} from './effect-size.ts';
 import { fitGlm, type GlmFit } from './glm.ts';
 import { bhQValues } from './multiple.ts';
 import { permutationTest, type PermutationTest } from './permutation.ts';
@@ -41,10 +50,25 @@ export interface FamilyResult {
   glm: GlmFit;
   permutation: PermutationTest;
   qFdr: Float64Array;
+  /** The effect size of the row: see effect-size.ts. */
   effect:
-    { kind: 'hedges-g'; sizes: GroupEffectSizes } | { kind: 'partial-eta-squared'; values: Float64Array };
-  /** Subjects per group level in this test. */
+    | { kind: 'adjusted-d' | 'd-z'; sizes: FamilyEffectSizes }
+    | { kind: 'partial-r' | 'partial-eta-squared'; values: Float64Array };
+  /** r_p = t/√(t² + df) of a t test (NaN for F). */
+  partialR: Float64Array;
+  /** F·df1/(F·df1 + df2), with F = t² for a t test. */
+  partialEtaSquared: Float64Array;
+  /**
+   * Whether the classical p applies: not under whole-block permutation, where the rows of a block
+   * are not independent and the row-level OLS p would overstate the evidence.
+   */
+  parametricValid: boolean;
+  /** Rows per level of a categorical effect in this test, else one entry 'all'. */
   groupSizes: Array<{ level: string; n: number }>;
+  /** Number of exchangeability blocks, or null without blocks. */
+  blocks: number | null;
+  /** Features the test left out, with the reason. */
+  excluded: Array<{ feature: string; nodeOrPoint: string | number | null; reason: string }>;
   warnings: string[];
 }
 
@@ -70,26 +94,75 @@ export function testFamily(
     }
     return Float64Array.from(rowOf, (i) => f.values[i]);
   });
+  const ex = design.exchangeability ?? null;
+  const blockColumns = design.blockColumns ?? [];
   const glm = fitGlm(design.columns, contrast, aligned);
-  const permutation = permutationTest(design.columns, contrast, aligned, options);
+  const permutation = permutationTest(design.columns, contrast, aligned, {
+    ...options,
+    exchangeability: ex,
+    invariantColumns: blockColumns,
+  });
   const qFdr = bhQValues(permutation.pUncorrected);
+  const { df1, df2 } = permutation;
+  const partialR = Float64Array.from(permutation.statistic, (t) => (df1 === 1 ? partialRFromT(t, df2) : NaN));
+  const partialEta = Float64Array.from(permutation.statistic, (v) =>
+    df1 === 1 ? partialEtaSquared(v * v, 1, df2) : partialEtaSquared(v, df1, df2),
+  );
   let effect: FamilyResult['effect'];
-  if (contrast.pair) {
+  const bootOptions = { seed: options.seed, bootstrap: options.bootstrap };
+  if (contrast.pair && design.paired && ex) {
     const a = design.levels.indexOf(contrast.pair[0]);
-    const b = design.levels.indexOf(contrast.pair[1]);
+    const pairs: Array<[number, number]> = [];
+    for (const m of ex.members) {
+      if (m.length !== 2) continue;
+      const [i, j] = design.group[m[0]] === a ? [m[1], m[0]] : [m[0], m[1]];
+      pairs.push([i, j]);
+    }
+    effect = { kind: 'd-z', sizes: dzFamily(aligned, pairs, bootOptions) };
+  } else if (contrast.pair) {
+    const n = design.ids.length;
+    const unit = ex ? ex.block : Int32Array.from({ length: n }, (_, i) => i);
+    const units = ex ? ex.names.length : n;
+    // Strata: the effect level of a unit when the level is constant within units.
+    const stratum = new Int32Array(units).fill(-1);
+    let constant = true;
+    for (let i = 0; i < n; i++) {
+      const u = unit[i];
+      if (stratum[u] === -1) stratum[u] = design.group[i];
+      else if (stratum[u] !== design.group[i]) constant = false;
+    }
+    if (!constant) stratum.fill(0);
     effect = {
-      kind: 'hedges-g',
-      sizes: hedgesGFamily(aligned, design.group, a, b, { seed: options.seed, bootstrap: options.bootstrap }),
+      kind: 'adjusted-d',
+      sizes: adjustedDifferenceFamily(design.columns, contrast.rows[0], aligned, {
+        ...bootOptions,
+        unit,
+        stratum,
+        blockColumns,
+      }),
     };
+  } else if (df1 === 1) {
+    effect = { kind: 'partial-r', values: partialR };
   } else {
-    effect = {
-      kind: 'partial-eta-squared',
-      values: Float64Array.from(permutation.statistic, (f) =>
-        partialEtaSquared(f, permutation.df1, permutation.df2),
-      ),
-    };
+    effect = { kind: 'partial-eta-squared', values: partialEta };
   }
   const levelsInTest = contrast.pair ?? design.levels;
+  const groupSizes =
+    levelsInTest.length > 0
+      ? levelsInTest.map((l) => ({ level: l, n: design.groupSizes[design.levels.indexOf(l)] }))
+      : [{ level: 'all', n: design.ids.length }];
+  const excluded = family.features.flatMap((f, j) => {
+    const why = permutation.leftOut[j];
+    if (!why) return [];
+    return [
+      {
+        feature: f.feature,
+        nodeOrPoint: f.nodeOrPoint,
+        reason:
+          why === 'non-finite' ? 'missing or non-finite values' : 'no variation beyond the nuisance model',
+      },
+    ];
+  });
   return {
     family: family.name,
     contrast,
@@ -98,7 +171,12 @@ export function testFamily(
     permutation,
     qFdr,
     effect,
-    groupSizes: levelsInTest.map((l) => ({ level: l, n: design.groupSizes[design.levels.indexOf(l)] })),
+    partialR,
+    partialEtaSquared: partialEta,
+    parametricValid: ex?.scheme !== 'whole-blocks',
+    groupSizes,
+    blocks: ex ? ex.names.length : null,
+    excluded,
     warnings: permutation.warnings.map((w) => `${family.name}, ${contrast.name}: ${w}`),
   };
 }

@@ -22,15 +22,31 @@
  * the residuals) and p = #{T* ≥ T} / N, identity included; otherwise p = (1 + #{T* ≥ T}) / (1 + B)
  * over B seeded random permutations.
  *
+ * Exchangeability blocks (design.ts; Winkler et al. 2014, 2015 NeuroImage 123): the permutations
+ * are restricted to the design's set — within blocks, whole blocks, or both (relabel.ts
+ * forEachBlockPermutation) — and the scheme is reported as freedman-lane-within-blocks,
+ * -whole-blocks or -within-and-whole-blocks. Every such permutation maps the span of the intercept
+ * and block intercepts onto itself, and Rz is orthogonal to it, so that part of the nuisance basis
+ * need not be permuted (as for the intercept in the plain scheme). Within blocks of two rows with
+ * the block intercepts in the nuisance, swapping a block's rows flips the sign of its residual
+ * difference: the test is the sign-flip test of the within-block differences. Designs without
+ * blocks take exactly the path they took before blocks existed.
+ *
  * FWER: each permutation's maximum over the family of |t| (or F) forms the null distribution of
  * the maximum (Westfall & Young 1993; Nichols & Holmes 2002, Hum. Brain Mapp. 15).
  *
  *   const res = permutationTest(design.columns, design.contrasts[0], features, { permutations: 5000, seed: 1 });
  *   res.pUncorrected[j], res.pFwer[j]
  */
-import type { Contrast } from './design.ts';
+import type { Contrast, Exchangeability } from './design.ts';
 import { dot, orthonormalize, solveUpperTransposed } from './linalg.ts';
-import { atLeast, forEachRelabelling, permutationP, type RelabellingRun } from './relabel.ts';
+import {
+  atLeast,
+  forEachBlockPermutation,
+  forEachRelabelling,
+  permutationP,
+  type RelabellingRun,
+} from './relabel.ts';
 
 export interface PermutationOptions {
   /** Random permutations to draw when enumeration is not possible (default 5000). */
@@ -45,7 +61,7 @@ export const FEW_RELABELLINGS = 20;
 
 export interface PermutationTest {
   kind: 't' | 'F';
-  scheme: 'label-permutation' | 'freedman-lane';
+  scheme: PermutationScheme;
   /** Observed t (signed) or F per feature; NaN for a feature left out (constant or non-finite). */
   statistic: Float64Array;
   pUncorrected: Float64Array;
@@ -60,22 +76,55 @@ export interface PermutationTest {
   /** Null distribution of the family maximum, one entry per visited arrangement. */
   maxNull: Float64Array;
   warnings: string[];
+  /** Why each feature was left out (null when tested). */
+  leftOut: Array<'non-finite' | 'no-variation' | null>;
 }
 
-/** The permutation test of `contrast` on each feature (each aligned with the design rows). */
-export function permutationTest(
+/** How the rows may be permuted: a blocked design's restricted set, and the columns it leaves invariant. */
+export interface ExchangeabilityOptions {
+  exchangeability?: Exchangeability | null;
+  /**
+   * Design columns whose span every permutation of the set maps onto itself besides the intercept
+   * (the block intercepts under within-block schemes); their part of the nuisance is skipped.
+   */
+  invariantColumns?: number[];
+}
+
+export type PermutationScheme =
+  | 'label-permutation'
+  | 'freedman-lane'
+  | 'freedman-lane-within-blocks'
+  | 'freedman-lane-whole-blocks'
+  | 'freedman-lane-within-and-whole-blocks';
+
+/**
+ * The split of a design into tested and nuisance parts and the permutations to visit, shared by
+ * the per-feature test and the distance-based test. `basis` holds the orthonormal tested basis
+ * (first `s` vectors, oriented for a t) followed by the nuisance basis vectors that permutations
+ * move (none in the plain scheme, where the nuisance is the intercept alone).
+ */
+export interface PermutationPlan {
+  n: number;
+  s: number;
+  df2: number;
+  plain: boolean;
+  scheme: PermutationScheme;
+  basis: Float64Array[];
+  /** Orthonormal basis of the nuisance space (all of it). */
+  qz: Float64Array[];
+  /** Visits every permutation to test; `permuted` holds the basis vectors moved by it (reused arrays). */
+  forEach(requested: number, seed: number, visit: (permuted: Float64Array[]) => void): RelabellingRun;
+}
+
+export function permutationPlan(
   columns: Float64Array[],
   contrast: Contrast,
-  features: ArrayLike<number>[],
-  options: PermutationOptions,
-): PermutationTest {
-  const requested = options.permutations ?? DEFAULT_PERMUTATIONS;
+  options: ExchangeabilityOptions = {},
+): PermutationPlan {
   const n = columns[0].length;
   const r = columns.length;
   const s = contrast.rows.length;
   const df2 = n - r;
-  const warnings: string[] = [];
-
   const full = orthonormalize(columns);
   if (full.dropped.length > 0) throw new Error('design is rank-deficient');
   const unit = (k: number) => Array.from({ length: r }, (_, i) => (i === k ? 1 : 0));
@@ -99,16 +148,92 @@ export function permutationTest(
     for (let k = 0; k < r; k++) for (let i = 0; i < n; i++) w[i] += a[k] * full.q[k][i];
     if (dot(w, qx[0]) < 0) for (let i = 0; i < n; i++) qx[0][i] = -qx[0][i];
   }
+  const ex = options.exchangeability ?? null;
   const ones = new Float64Array(n).fill(1 / Math.sqrt(n));
-  const plain = qz.length === 1 && Math.abs(dot(qz[0], ones)) > 1 - 1e-12;
-  // In the plain scheme P Rz stays orthogonal to the intercept, so only the tested basis is needed.
-  const basis = plain ? qx : [...qx, ...qz];
+  const plain = !ex && qz.length === 1 && Math.abs(dot(qz[0], ones)) > 1 - 1e-12;
+  let basis: Float64Array[];
+  if (plain) {
+    // In the plain scheme P Rz stays orthogonal to the intercept, so only the tested basis is needed.
+    basis = qx;
+  } else if (ex) {
+    // Rz is orthogonal to the invariant columns, and so is P Rz: only the rest of the nuisance moves.
+    const invariant = orthonormalize([
+      columns[0],
+      ...(options.invariantColumns ?? []).map((k) => columns[k]),
+    ]).q;
+    const rest = orthonormalize([...invariant, ...qz]).q.slice(invariant.length);
+    basis = [...qx, ...rest];
+  } else basis = [...qx, ...qz];
+
+  // Row types: in the plain scheme, rows of M that are equal are exchangeable labels.
+  const keys = new Int32Array(n);
+  const representative: number[] = [];
+  if (plain) {
+    const seen = new Map<string, number>();
+    for (let i = 0; i < n; i++) {
+      const key = columns.map((c) => c[i]).join(',');
+      let t = seen.get(key);
+      if (t === undefined) {
+        t = representative.length;
+        seen.set(key, t);
+        representative.push(i);
+      }
+      keys[i] = t;
+    }
+  } else {
+    for (let i = 0; i < n; i++) {
+      keys[i] = i;
+      representative.push(i);
+    }
+  }
+  const scheme: PermutationScheme = ex
+    ? `freedman-lane-${ex.scheme}`
+    : plain
+      ? 'label-permutation'
+      : 'freedman-lane';
+  return {
+    n,
+    s,
+    df2,
+    plain,
+    scheme,
+    basis,
+    qz,
+    forEach(requested, seed, visit) {
+      const permuted = basis.map(() => new Float64Array(n));
+      const move = (source: Int32Array, rep: boolean) => {
+        for (let k = 0; k < basis.length; k++) {
+          const src = basis[k];
+          const dst = permuted[k];
+          if (rep) for (let i = 0; i < n; i++) dst[i] = src[representative[source[i]]];
+          else for (let i = 0; i < n; i++) dst[i] = src[source[i]];
+        }
+        visit(permuted);
+      };
+      if (ex) return forEachBlockPermutation(ex, n, requested, seed, (src) => move(src, false));
+      return forEachRelabelling(keys, requested, seed, (arr) => move(arr, true));
+    },
+  };
+}
+
+/** The permutation test of `contrast` on each feature (each aligned with the design rows). */
+export function permutationTest(
+  columns: Float64Array[],
+  contrast: Contrast,
+  features: ArrayLike<number>[],
+  options: PermutationOptions & ExchangeabilityOptions,
+): PermutationTest {
+  const requested = options.permutations ?? DEFAULT_PERMUTATIONS;
+  const warnings: string[] = [];
+  const plan = permutationPlan(columns, contrast, options);
+  const { n, s, df2, plain, basis, qz } = plan;
   const nb = basis.length;
 
   // Unit-normalised nuisance residuals, feature-major.
   const m = features.length;
   const rz = new Float64Array(m * n);
   const valid = new Uint8Array(m);
+  const leftOut: Array<'non-finite' | 'no-variation'> = new Array(m);
   let nonFinite = 0;
   let constant = 0;
   for (let j = 0; j < m; j++) {
@@ -117,6 +242,7 @@ export function permutationTest(
     for (let i = 0; finite && i < n; i++) finite = Number.isFinite(y[i]);
     if (!finite) {
       nonFinite++;
+      leftOut[j] = 'non-finite';
       continue;
     }
     const e = Float64Array.from(y);
@@ -128,6 +254,7 @@ export function permutationTest(
     const scale = Math.sqrt(dot(y, y));
     if (!(norm > 1e-12 * scale)) {
       constant++;
+      leftOut[j] = 'no-variation';
       continue;
     }
     valid[j] = 1;
@@ -202,37 +329,9 @@ export function permutationTest(
   const observed = new Float64Array(m).fill(NaN);
   evaluate(basis, statistic, (j, v) => (observed[j] = v));
 
-  // Row types: in the plain scheme, rows of M that are equal are exchangeable labels.
-  const keys = new Int32Array(n);
-  const representative: number[] = [];
-  if (plain) {
-    const seen = new Map<string, number>();
-    for (let i = 0; i < n; i++) {
-      const key = columns.map((c) => c[i]).join(',');
-      let t = seen.get(key);
-      if (t === undefined) {
-        t = representative.length;
-        seen.set(key, t);
-        representative.push(i);
-      }
-      keys[i] = t;
-    }
-  } else {
-    for (let i = 0; i < n; i++) {
-      keys[i] = i;
-      representative.push(i);
-    }
-  }
-
   const count = new Float64Array(m);
   const maxima: number[] = [];
-  const permuted = basis.map(() => new Float64Array(n));
-  const run = forEachRelabelling(keys, requested, options.seed, (arr) => {
-    for (let k = 0; k < nb; k++) {
-      const src = basis[k];
-      const dst = permuted[k];
-      for (let i = 0; i < n; i++) dst[i] = src[representative[arr[i]]];
-    }
+  const run = plan.forEach(requested, options.seed, (permuted) => {
     let max = -Infinity;
     evaluate(permuted, null, (j, v) => {
       if (atLeast(v, observed[j])) count[j]++;
@@ -257,7 +356,7 @@ export function permutationTest(
   }
   return {
     kind: s === 1 ? 't' : 'F',
-    scheme: plain ? 'label-permutation' : 'freedman-lane',
+    scheme: plan.scheme,
     statistic,
     pUncorrected,
     pFwer,
@@ -268,6 +367,7 @@ export function permutationTest(
     smallestP,
     maxNull,
     warnings,
+    leftOut: leftOut.map((x, j) => (valid[j] ? null : x)),
   };
 }
 

@@ -27,7 +27,10 @@ export const STATS_COLUMNS = [
   'effect_size',
   'effect_low',
   'effect_high',
+  'partial_r',
+  'partial_eta_squared',
   'n_per_group',
+  'n_blocks',
   'scheme',
   'permutation_mode',
   'permutations',
@@ -45,10 +48,11 @@ export function statsTable(results: FamilyResult[]): { table: Table; warnings: s
     const nPerGroup = r.groupSizes.map((g) => `${g.level}:${g.n}`).join(' ');
     r.features.forEach((f, j) => {
       let effect: [string, number | null, number | null, number | null];
-      if (r.effect.kind === 'hedges-g') {
+      const kind = r.effect.kind.replace(/-/g, '_');
+      if ('sizes' in r.effect) {
         const e = r.effect.sizes;
-        effect = ['hedges_g', num(e.g[j]), num(e.low[j]), num(e.high[j])];
-      } else effect = ['partial_eta_squared', num(r.effect.values[j]), null, null];
+        effect = [kind, num(e.value[j]), num(e.low[j]), num(e.high[j])];
+      } else effect = [kind, num(r.effect.values[j]), null, null];
       rows.push([
         r.family,
         f.feature,
@@ -58,12 +62,15 @@ export function statsTable(results: FamilyResult[]): { table: Table; warnings: s
         num(perm.statistic[j]),
         perm.df1,
         perm.df2,
-        num(r.glm.p[j]),
+        r.parametricValid ? num(r.glm.p[j]) : null,
         num(perm.pUncorrected[j]),
         num(perm.pFwer[j]),
         num(r.qFdr[j]),
         ...effect,
+        num(r.partialR[j]),
+        num(r.partialEtaSquared[j]),
         nPerGroup,
+        r.blocks,
         perm.scheme,
         perm.run.mode,
         perm.run.visited,
@@ -88,6 +95,8 @@ export const DIAGRAM_TEST_COLUMNS = [
   'permutations',
   'seed',
   'warning',
+  'scheme',
+  'effect',
 ];
 
 export interface DiagramTestEntry {
@@ -97,6 +106,8 @@ export interface DiagramTestEntry {
   metric: string;
   result: DistanceTest;
   groupSizes: Array<{ level: string; n: number }>;
+  /** The tested effect or term (default: the group). */
+  effect?: string | null;
 }
 
 /** One row per diagram family, metric and test. */
@@ -116,6 +127,8 @@ export function diagramTestsTable(entries: DiagramTestEntry[]): Table {
       e.result.run.visited,
       e.result.run.seed,
       e.result.warnings.length > 0 ? e.result.warnings.join('; ') : null,
+      e.result.scheme,
+      e.effect ?? null,
     ]),
   };
 }

@@ -27,10 +27,15 @@ describe('buildDesign', () => {
     expect(d.columns[2][0]).toBeCloseTo(30 - 235 / 6, 12);
     expect(Array.from(d.columns[3])).toEqual([0, 1, 1, 0, 0, 1]);
     expect(d.groupSizes).toEqual([3, 3]);
-    // control − patient: the patient dummy with sign −1.
+    // other − reference = patient − control: the patient dummy with sign +1.
     expect(d.contrasts).toHaveLength(1);
-    expect(d.contrasts[0].name).toBe('control - patient');
-    expect(d.contrasts[0].rows).toEqual([[0, -1, 0, 0]]);
+    expect(d.contrasts[0].name).toBe('patient - control');
+    expect(d.contrasts[0].rows).toEqual([[0, 1, 0, 0]]);
+    // --reference patient turns it around.
+    const r = buildDesign(six, { groupColumn: 'dx', covariates: ['age', 'site'], reference: 'patient' });
+    expect(r.levels).toEqual(['patient', 'control']);
+    expect(r.contrasts[0].name).toBe('control - patient');
+    expect(r.contrasts[0].rows).toEqual([[0, 1, 0, 0]]);
   });
 
   it('reports every excluded subject with its reason', () => {

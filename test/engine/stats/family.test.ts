@@ -4,7 +4,6 @@ import { createRng } from '../../../electron/engine/random.ts';
 import { buildDesign } from '../../../electron/engine/stats/design.ts';
 import { diagramDistanceMatrix } from '../../../electron/engine/stats/diagram-distance.ts';
 import { permanova } from '../../../electron/engine/stats/diagram-tests.ts';
-import { hedgesG } from '../../../electron/engine/stats/effect-size.ts';
 import { testFamily, type FeatureFamily } from '../../../electron/engine/stats/family.ts';
 import { bhQValues } from '../../../electron/engine/stats/multiple.ts';
 import { classicalMds } from '../../../electron/engine/stats/embedding.ts';
@@ -70,16 +69,31 @@ describe('testFamily and stats.tsv', () => {
     expect(warnings).toEqual([]);
   });
 
-  it('q is BH over the family, g is computed on the two groups as aligned by id', () => {
+  it('q is BH over the family; d is the age-adjusted difference over the residual SD, aligned by id', () => {
     const p = results[0].permutation.pUncorrected;
     expect(Array.from(results[0].qFdr)).toEqual(Array.from(bhQValues(p)));
-    const col = table.columns.indexOf('effect_size');
+    const col = (name: string) => table.columns.indexOf(name);
+    expect(table.rows[0][col('effect_kind')]).toBe('adjusted_d');
     family.features.forEach((f, j) => {
-      const byGroup = (g: string) =>
-        order.flatMap((id, i) =>
-          subjects.find((s) => s.id === id)!.covariates.dx === g ? [f.values[i] as number] : [],
-        );
-      expect(table.rows[j][col]).toBeCloseTo(hedgesG(byGroup('patient'), byGroup('control')), 12);
+      // Least squares by hand on the design rows: β̂ from the coefficients fitGlm reports, residuals from them.
+      const y = design.ids.map((id) => f.values[order.indexOf(id)] as number);
+      const beta = results[0].glm.beta[j];
+      let rss = 0;
+      y.forEach((v, i) => {
+        let fit = 0;
+        design.columns.forEach((c, k) => (fit += beta[k] * c[i]));
+        rss += (v - fit) ** 2;
+      });
+      const mse = rss / (y.length - design.columns.length);
+      // patient − control: the patient dummy's coefficient.
+      const k = design.columnNames.indexOf('dx[patient]');
+      expect(table.rows[j][col('effect_size')]).toBeCloseTo(beta[k] / Math.sqrt(mse), 10);
+      const t = table.rows[j][col('statistic')] as number;
+      expect(table.rows[j][col('partial_r')]).toBeCloseTo(t / Math.sqrt(t * t + n - 4), 12);
+      expect(table.rows[j][col('partial_eta_squared')]).toBeCloseTo((t * t) / (t * t + n - 4), 12);
+      const lo = table.rows[j][col('effect_low')] as number;
+      const hi = table.rows[j][col('effect_high')] as number;
+      expect(lo).toBeLessThan(hi);
     });
     // Feature 0 has no group effect by construction, feature 5 a large one.
     expect(results[0].permutation.pFwer[5]).toBeLessThan(0.01);
@@ -114,6 +128,7 @@ describe('diagram-tests.tsv', () => {
     ]);
     expect(table.columns).toEqual(DIAGRAM_TEST_COLUMNS);
     expect(table.rows[0].slice(0, 3)).toEqual(['H1', 'wasserstein-2', 'permanova']);
+    expect(table.rows[0][table.columns.indexOf('scheme')]).toBe('label-permutation');
     const col = (name: string) => table.columns.indexOf(name);
     expect(table.rows[0][col('permutations')]).toBe(6);
     expect(table.rows[0][col('permutation_mode')]).toBe('exact');
