@@ -11,6 +11,7 @@ import { createServer, type IncomingMessage, type ServerResponse } from 'node:ht
 import type { AddressInfo } from 'node:net';
 import { dirname, extname, isAbsolute, join, relative, resolve, sep } from 'node:path';
 import type { LoopwiseApi, ProgressEvent } from './api.ts';
+import { ContractError } from './contract.ts';
 import { BadRequest, checkCall, isApiMethod, TOKEN_HEADER, type DoorInfo } from './web-client.ts';
 
 export interface WebServerOptions {
@@ -181,7 +182,8 @@ export async function startWebServer(api: LoopwiseApi, options: WebServerOptions
     try {
       checked = checkCall(name, args);
     } catch (e) {
-      return send(res, 400, { error: (e as Error).message });
+      const problems = e instanceof BadRequest ? e.problems : [];
+      return send(res, 400, { error: (e as Error).message, ...(problems.length ? { problems } : {}) });
     }
     for (const p of checked.paths) {
       if (!insideRoots(p, realRoots)) {
@@ -195,6 +197,8 @@ export async function startWebServer(api: LoopwiseApi, options: WebServerOptions
       const result = await fn.apply(api, checked.args);
       return send(res, 200, result === undefined ? null : result);
     } catch (e) {
+      // Settings the contract refuses once the cohort is open (e.g. an unknown column): a bad request.
+      if (e instanceof ContractError) return send(res, 400, { error: e.message, problems: e.problems });
       // A refusal to overwrite the user's files is a conflict the user can resolve, not a server fault.
       const conflict = e instanceof Error && e.name === 'OutDirError';
       return send(res, conflict ? 409 : 500, { error: e instanceof Error ? e.message : String(e) });

@@ -12,7 +12,13 @@ import { ENGINE_VERSION } from '../engine/version.ts';
 import { readMatrixFile } from '../io/read-matrix.ts';
 import type { CliIO } from '../cli.ts';
 import { UsageError, parseArgs } from './args.ts';
-import { FILTRATION_VALUE_OPTIONS, filtrationOptions } from './filtration-options.ts';
+import { validateMatrixPick } from '../contract.ts';
+import {
+  FILTRATION_VALUE_OPTIONS,
+  filtrationOptions,
+  numberText,
+  refuseProblems,
+} from './filtration-options.ts';
 
 export const DIAGRAM_HELP = `usage: loopwise diagram FILE... [options]
 
@@ -30,6 +36,9 @@ options:
   --representatives     add a cycle representative for every H1 interval
   --h0-representatives  add the merge tree with the nodes of each absorbed component
   --keep-zero           keep intervals of zero length
+  --variable NAME       the variable to read from a .mat file (needed when it holds several)
+  --stack-index K       pick matrix K of a 3-D stack (.npy or .mat, K × N × N), 0-based: the
+                        first matrix is 0
   --progress            report progress on stderr (always on for a matrix far beyond the usual size)
 `;
 
@@ -41,6 +50,10 @@ export interface DiagramSettings {
   representatives: boolean;
   h0Representatives: boolean;
   keepZeroLength: boolean;
+  /** The .mat variable read (--variable), when one was named. */
+  variable?: string;
+  /** The matrix picked from a 3-D stack (--stack-index), 0-based. */
+  stackIndex?: number;
 }
 
 export function parseDiagramArgs(args: string[]): {
@@ -49,7 +62,7 @@ export function parseDiagramArgs(args: string[]): {
   progress: boolean;
 } {
   const p = parseArgs(args, {
-    values: FILTRATION_VALUE_OPTIONS,
+    values: [...FILTRATION_VALUE_OPTIONS, 'variable', 'stack-index'],
     flags: ['representatives', 'h0-representatives', 'keep-zero', 'progress', 'help'],
   });
   if (p.flags.has('help')) {
@@ -57,6 +70,9 @@ export function parseDiagramArgs(args: string[]): {
   }
   if (p.positionals.length === 0) throw new UsageError('no FILE given');
   const { input, transform, maxDim, cap } = filtrationOptions(p);
+  const variable = p.values.get('variable');
+  const stackIndex = numberText(p, 'stack-index');
+  refuseProblems(validateMatrixPick({ variable, stackIndex }));
   return {
     files: p.positionals,
     settings: {
@@ -67,6 +83,8 @@ export function parseDiagramArgs(args: string[]): {
       representatives: p.flags.has('representatives'),
       h0Representatives: p.flags.has('h0-representatives'),
       keepZeroLength: p.flags.has('keep-zero'),
+      ...(variable !== undefined ? { variable } : {}),
+      ...(stackIndex !== undefined ? { stackIndex } : {}),
     },
     progress: p.flags.has('progress'),
   };
@@ -123,7 +141,10 @@ function progressReporter(file: string, io: CliIO): (p: PersistenceProgress) => 
 
 /** Reads and transforms one file; the square matrix is garbage once this returns. */
 async function readDistances(file: string, settings: DiagramSettings): Promise<DistanceMatrix> {
-  const matrix = await readMatrixFile(file);
+  const matrix = await readMatrixFile(file, {
+    variable: settings.variable,
+    stackIndex: settings.stackIndex,
+  });
   return toDistances(matrix, { input: settings.input, transform: settings.transform });
 }
 
@@ -165,7 +186,7 @@ export async function diagramCommand(args: string[], io: CliIO): Promise<number>
     parsed = parseDiagramArgs(args);
   } catch (e) {
     if (e instanceof UsageError) {
-      io.err(`loopwise diagram: ${e.message}\n${DIAGRAM_HELP}`);
+      io.err(`loopwise diagram: ${e.message} (see loopwise diagram --help)\n`);
       return 2;
     }
     throw e;

@@ -29,6 +29,12 @@ import { WorkerPool, defaultPoolSize } from '../workers/pool.ts';
 import { openAtomicWriter, removeStaleTemps, writeFileAtomic } from './atomic.ts';
 import { FiltrationCache } from './cache.ts';
 import { loadSubjectMatrix } from '../io/cohort.ts';
+import {
+  assertNoProblems,
+  validateCohortRequest,
+  validateStatsColumns,
+  validateStatsSettings,
+} from '../contract.ts';
 import { openCohortSource } from './cohort-source.ts';
 import type { CohortSource, SourceOptions } from './cohort-source.ts';
 import type { RunHooks, StageContext, StageOutput } from './hooks.ts';
@@ -205,6 +211,7 @@ export class LoopwiseService implements LoopwiseApi {
    */
   async startRun(req: StartRunRequest): Promise<{ runId: string }> {
     checkSettings(req.settings);
+    assertNoProblems([...validateCohortRequest(req.cohort), ...validateStatsSettings(req.stats)]);
     if (req.shard) {
       const { index, count } = req.shard;
       if (!(Number.isInteger(count) && count >= 1 && Number.isInteger(index) && index >= 1 && index <= count))
@@ -221,6 +228,8 @@ export class LoopwiseService implements LoopwiseApi {
       input: req.settings.input,
       dropRegions: req.settings.dropRegions,
     });
+    // Columns the statistics name must exist: refused now, before any filtration runs.
+    assertNoProblems(validateStatsColumns(req.stats, source.report.columns));
     const cacheDir = resolve(
       req.cacheDir ?? (outDir ? join(outDir, CACHE_DIR_NAME) : (this.options.cacheDir ?? CACHE_DIR_NAME)),
     );
@@ -432,7 +441,14 @@ export class LoopwiseService implements LoopwiseApi {
     const grid = (state.results as { grid?: number[] }).grid;
     if (grid && state.provenance) {
       // The grid is known only once the features stage has seen the cohort: record it too.
-      state.provenance = { ...state.provenance, grid };
+      const series = state.report.subjects.find((x) => x.source.timeSeries);
+      state.provenance = {
+        ...state.provenance,
+        grid,
+        gridSource: state.run?.settings.gridRange ? 'fixed' : 'cohort',
+        // From the subjects' sources, so a merge of shards records it too.
+        ...(series ? { correlation: series.source.correlation ?? 'pearson' } : {}),
+      };
       if (outDir) await ctx.writeJson(tableNames(format).provenance, state.provenance);
     }
     if (outDir && !state.cancelRequested) await markOutDirComplete(outDir, files);
@@ -574,6 +590,8 @@ export class LoopwiseService implements LoopwiseApi {
     const format = opts.tableFormat ?? 'tsv';
     // Statistics run after the merge, so they may be chosen now; the shards' own are the default.
     const stats: StatsSettings = { ...first.stats, ...opts.stats };
+    assertNoProblems(validateStatsSettings(stats));
+    assertNoProblems(validateStatsColumns(stats, first.report.columns));
     await prepareOutDir(dir, opts.force ?? false, Object.values(tableNames(format)));
     const cache = new FiltrationCache(resolve(opts.cacheDir ?? first.cacheDir));
     const runId = `run-${this.nextRun++}`;

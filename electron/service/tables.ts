@@ -11,6 +11,7 @@ import { ENGINE_VERSION } from '../engine/version.ts';
 import pkg from '../../package.json' with { type: 'json' };
 import { openAtomicWriter, removeStaleTemps, writeFileAtomic } from './atomic.ts';
 import type { CachedFiltration, FiltrationCache } from './cache.ts';
+import { MISSING_VALUE } from '../contract.ts';
 
 export const SOFTWARE_VERSION: string = pkg.version;
 
@@ -68,7 +69,7 @@ export function formatNumber(x: number): string {
 }
 
 function cell(v: string | number | null, format: TableFormat): string {
-  if (v === null) return 'n/a';
+  if (v === null) return MISSING_VALUE;
   if (typeof v === 'number') return formatNumber(v);
   if (format === 'tsv') return v.replace(/[\t\r\n]+/g, ' ');
   return /[",\r\n]/.test(v) ? `"${v.replace(/"/g, '""')}"` : v;

@@ -73,6 +73,14 @@ describe('Electron IPC', () => {
     await expect(call('exportRun', ['run-1', out, 'yes'])).rejects.toThrow(/overwrite/);
   });
 
+  it('rejects the values the contract refuses (here seed −1), naming the field and the option', async () => {
+    const { settings, stats } = (await call('defaultSettings', [])) as { settings: unknown; stats: object };
+    const req = { cohort: { dir: sample }, settings, stats: { ...stats, seed: -1 }, outDir: null };
+    await expect(call('startRun', [req])).rejects.toThrow(/stats\.seed \(--seed\): must be an integer/);
+    const calls = api.calls.filter((c) => c.method === 'startRun').length;
+    expect(calls).toBe(0);
+  });
+
   it('touches only the sample cohort, the default output folder and folders picked in the native dialog', async () => {
     await expect(call('openCohort', [{ dir: sample }])).resolves.toMatchObject({ n: 16 });
     await expect(call('exportRun', ['run-1', join(out, 'x'), false])).resolves.toBeTruthy();
