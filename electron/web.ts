@@ -227,12 +227,12 @@ export async function startWebServer(api: LoopwiseApi, options: WebServerOptions
     } catch (e) {
       // Settings the contract refuses once the cohort is open (e.g. an unknown column): a bad request.
       if (e instanceof ContractError) return send(res, 400, { error: e.message, problems: e.problems });
-      // A refusal to overwrite the user's files is a conflict the user can resolve, not a server
-      // fault; so is a folder that cannot take the write (full disk: 507, read-only: 403).
+      // A refusal to overwrite the user's files, or to export a run that did not finish, is a
+      // conflict the user can resolve, not a server fault; so is a folder that cannot take the write (full disk: 507, read-only: 403).
       const kind = e instanceof Error ? e.name : '';
       const code = (e as { code?: string }).code;
       const status =
-        kind === 'OutDirError'
+        kind === 'OutDirError' || kind === 'RunStateError'
           ? 409
           : kind === 'WriteError'
             ? code === 'ENOSPC' || code === 'EDQUOT'

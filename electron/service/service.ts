@@ -575,7 +575,13 @@ export class LoopwiseService implements LoopwiseApi {
 
   async exportRun(runId: string, outDir: string, overwrite: boolean): Promise<{ files: string[] }> {
     const s = this.runs.get(runId);
-    if (!s || s.status !== 'done' || !s.run) throw new Error(`run ${runId} has not finished`);
+    if (!s) throw new RunStateError(`no run ${runId} in this session: run the analysis, then export`);
+    if (s.status !== 'done' || !s.run)
+      throw new RunStateError(
+        s.status === 'running'
+          ? `run ${runId} is still running: export once it is done`
+          : `run ${runId} ${s.status === 'cancelled' ? 'was cancelled' : `failed (${s.stageFailures.map((f) => `${f.subject} ${f.reason}`).join('; ') || 'see its summary'})`}: nothing to export; fix the settings and run again`,
+      );
     const dir = resolve(outDir);
     const format = s.request.tableFormat ?? 'tsv';
     const folder = await openRunFolder(dir, s.request, format, overwrite);
@@ -589,6 +595,14 @@ export class LoopwiseService implements LoopwiseApi {
     } finally {
       await folder.release();
     }
+  }
+}
+
+/** A call the run's state does not allow (e.g. exporting a run that failed): a conflict, not a fault. */
+export class RunStateError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = 'RunStateError';
   }
 }
 

@@ -30,6 +30,7 @@ import {
 import type { FeatureRow } from '../engine/features/index.ts';
 import { computePersistence } from '../engine/persistence.ts';
 import { buildDesign } from '../engine/stats/design.ts';
+import { parseTerm } from '../engine/stats/formula.ts';
 import type { Design, DesignSpec, DesignSubject } from '../engine/stats/design.ts';
 import { diagramDistanceMatrix, metricName } from '../engine/stats/diagram-distance.ts';
 import type { DiagramMetric } from '../engine/stats/diagram-distance.ts';
@@ -399,16 +400,28 @@ export function cohortStages(): RunHooks {
   };
 }
 
-/** The column scans are grouped by (group curves, group filtrations): --group, or an --effect holding text. */
+/**
+ * The column scans are grouped by (group curves, group filtrations): --group, an --effect holding
+ * text, or the first column holding text of a --model's --test term other than the --blocks
+ * column (group for group:session).
+ */
 function groupingColumn(ctx: StageContext): string | null {
-  const { groupColumn, effect } = ctx.stats;
+  const { groupColumn, effect, model, test, blocks } = ctx.stats;
   if (groupColumn) return groupColumn;
-  if (!effect) return null;
-  const categorical = ctx.report.subjects.some((s) => {
-    const v = s.covariates[effect];
-    return v !== null && v !== undefined && typeof v !== 'number';
-  });
-  return categorical ? effect : null;
+  const categorical = (col: string) =>
+    ctx.report.subjects.some((s) => {
+      const v = s.covariates[col];
+      return v !== null && v !== undefined && typeof v !== 'number';
+    });
+  if (effect) return categorical(effect) ? effect : null;
+  if (!model || !test) return null;
+  let term: string[];
+  try {
+    term = parseTerm(test);
+  } catch {
+    return null;
+  }
+  return term.find((c) => c !== blocks && categorical(c)) ?? null;
 }
 
 /** The subject's distances as the filtration saw them (regions dropped, transform applied), or null when unreadable. */

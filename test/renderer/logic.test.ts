@@ -30,14 +30,16 @@ import {
   ranked,
   rankedBarFigure,
 } from '../../renderer/src/lib/regions.ts';
-import { settingsProblems, withInput } from '../../renderer/src/lib/settings.ts';
+import { settingsProblems, unplacedProblems, withInput } from '../../renderer/src/lib/settings.ts';
 import {
   cohortSummary,
   covariateChoices,
   defaultGroupColumn,
+  designGroupColumn,
   filterFindings,
   groupColumnChoices,
   participantRows,
+  proposedDesign,
 } from '../../renderer/src/lib/study.ts';
 import {
   barcodeFigure,
@@ -73,6 +75,7 @@ describe('Study', () => {
   it('counts subjects, usable ones, findings and group sizes', () => {
     expect(cohortSummary(report, 'group')).toEqual({
       subjects: 10,
+      participants: 10,
       usable: 9,
       excluded: 1,
       errors: 1,
@@ -519,5 +522,108 @@ describe('group comparisons the data cannot support', () => {
       'Group patient of group has fewer than 2 usable subjects; choose no group column instead.',
     ]);
     expect(settingsProblems(defaults.settings, { ...defaults.stats, groupColumn: null }, few)).toEqual([]);
+  });
+});
+
+/**
+ * The fake cohort scanned twice (ses-pre, ses-post) as a BIDS longitudinal study: scan ids
+ * `${participant}_ses-${session}`, participant_id and session columns, as the readers report them.
+ */
+const longitudinal: CohortReport = {
+  ...report,
+  subjects: report.subjects.flatMap((s) =>
+    ['pre', 'post'].map((ses) => ({
+      ...s,
+      id: `${s.id}_ses-${ses}`,
+      participant: s.id,
+      session: ses,
+      usable: true,
+      covariates: { participant_id: s.id, session: ses, ...s.covariates },
+    })),
+  ),
+  columns: [
+    { name: 'participant_id', kind: 'categorical', levels: report.subjects.map((s) => s.id), missing: 0 },
+    { name: 'session', kind: 'categorical', levels: ['post', 'pre'], missing: 0 },
+    ...report.columns,
+  ],
+  findings: [],
+  sessions: ['post', 'pre'],
+};
+
+describe('designs for a cohort with sessions', () => {
+  // Before any choice: the contract's defaults ask for no statistics.
+  const none = { ...defaults.stats, groupColumn: null };
+  it('proposes the group × session interaction with participant blocks, which the form accepts', () => {
+    const st = proposedDesign(longitudinal, none);
+    expect(st).toMatchObject({
+      groupColumn: null,
+      effect: null,
+      model: 'group*session',
+      test: 'group:session',
+      blocks: 'participant_id',
+      reference: null,
+    });
+    expect(settingsProblems(defaults.settings, st, longitudinal)).toEqual([]);
+    // The scans are split by group (the first categorical column of the tested term but the blocks).
+    expect(designGroupColumn(st, longitudinal)).toBe('group');
+  });
+
+  it('proposes the effect of session where there is no group column', () => {
+    const noGroup: CohortReport = {
+      ...longitudinal,
+      columns: longitudinal.columns.filter((c) => c.name !== 'group' && c.name !== 'sex'),
+    };
+    expect(proposedDesign(noGroup, none)).toMatchObject({
+      effect: 'session',
+      model: null,
+      blocks: 'participant_id',
+    });
+  });
+
+  it('keeps a design that fits the cohort, adding the blocks repeated scans need', () => {
+    const st = proposedDesign(longitudinal, {
+      ...defaults.stats,
+      groupColumn: 'group',
+      covariates: ['age', 'iq'],
+    });
+    expect(st).toMatchObject({
+      groupColumn: 'group',
+      model: null,
+      blocks: 'participant_id',
+      covariates: ['age'],
+    });
+  });
+
+  it('replaces a design naming columns the new cohort lacks (session in a cohort without sessions)', () => {
+    const st = proposedDesign(report, {
+      ...defaults.stats,
+      model: 'group*session',
+      test: 'group:session',
+      blocks: 'participant_id',
+    });
+    expect(st).toMatchObject({ groupColumn: 'group', model: null, test: null, blocks: null });
+  });
+
+  it('says under the blocks field that repeated scans need blocks (the design would refuse them)', () => {
+    const problems = settingsProblems(
+      defaults.settings,
+      { ...defaults.stats, groupColumn: 'group' },
+      longitudinal,
+    );
+    expect(problems).toHaveLength(1);
+    expect(problems[0]).toMatchObject({ field: 'stats.blocks', option: '--blocks' });
+    expect(problems[0].message).toMatch(/10 participants have several scans \(sub-01: 2, one per session\)/);
+    expect(problems[0].message).toContain('participant_id');
+    // No statistics: nothing to exchange, nothing to declare.
+    expect(settingsProblems(defaults.settings, none, longitudinal)).toEqual([]);
+  });
+
+  it('lists only the problems a view has no field for', () => {
+    const problems = [
+      { field: 'stats.groupColumn', option: '--group', message: 'a' },
+      { field: 'stats.blocks', option: '--blocks', message: 'b' },
+      { field: 'settings.cap', option: '--cap-distance', message: 'c' },
+    ];
+    expect(unplacedProblems(problems, ['stats.groupColumn', 'settings'])).toEqual([problems[1]]);
   });
 });

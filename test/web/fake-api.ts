@@ -327,6 +327,12 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
     },
     async exportRun(runId, outDir, overwrite) {
       calls.push({ method: 'exportRun', args: [runId, outDir, overwrite] });
+      if (runId === 'run-failed') {
+        // As the service's RunStateError: a run that did not finish has nothing to export.
+        const e = new Error(`run ${runId} failed (statistics): nothing to export`);
+        e.name = 'RunStateError';
+        throw e;
+      }
       if (outDir.endsWith('taken') && !overwrite) {
         const e = new Error(`${outDir} already holds results; choose another folder or allow replacing`);
         e.name = 'OutDirError';

@@ -122,6 +122,12 @@ describe('browser-mode server', () => {
     expect((await post('exportRun', ['run-1', join(out, 'taken'), true])).status).toBe(200);
   });
 
+  it('answers 409, not 500, when the run to export did not finish (the service’s RunStateError)', async () => {
+    const res = await post('exportRun', ['run-failed', join(out, 'fresh'), false]);
+    expect(res.status).toBe(409);
+    expect((await res.json()).error).toMatch(/failed \(statistics\): nothing to export/);
+  });
+
   it('answers 400 with the bad field named when arguments do not match the contract', async () => {
     const res = await post('startRun', [
       { cohort: { dir: cohort }, settings: { input: 'banana' }, stats: {} },

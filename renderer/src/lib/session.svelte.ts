@@ -12,7 +12,7 @@ import type {
 import type { Problem } from '../../../electron/contract.ts';
 import type { DoorInfo, LoopwiseDoor } from '../../../electron/web-client.ts';
 import { mergeFailures } from './progress.ts';
-import { defaultGroupColumn } from './study.ts';
+import { proposedDesign } from './study.ts';
 
 export type ViewName = 'study' | 'analysis' | 'groups' | 'regions' | 'subject' | 'export';
 
@@ -88,12 +88,8 @@ export class Session {
       this.progress = null;
       this.subject = null;
       this.subjectId = null;
-      // A group column is proposed only while no other design (effect, model) is chosen.
-      if (this.stats && this.stats.effect === null && this.stats.model === null) {
-        const choice = this.stats.groupColumn;
-        const valid = choice !== null && report.columns.some((c) => c.name === choice);
-        this.stats = { ...this.stats, groupColumn: valid ? choice : defaultGroupColumn(report) };
-      }
+      // The design in use where it fits this cohort, else one that does (sessions: group × session, blocks).
+      if (this.stats) this.stats = proposedDesign(report, $state.snapshot(this.stats) as StatsSettings);
     });
   }
 

@@ -15,6 +15,7 @@ import {
   validateAnalysisSettings,
   validateCohortRequest,
   validateStatsColumns,
+  statisticsRequested,
   validateStatsSettings,
 } from '../../../electron/contract.ts';
 import type { Problem } from '../../../electron/contract.ts';
@@ -65,6 +66,19 @@ export function settingsProblems(
       option: '--drop-regions',
       message: `Regions ${bad.join(', ')} do not exist (the cohort has ${n}).`,
     });
+  if (statisticsRequested(st) && !st.blocks) {
+    // The design refuses a participant's repeated scans without blocks: say so before the run.
+    const scans = new Map<string, number>();
+    for (const x of report.subjects)
+      if (x.usable) scans.set(x.participant, (scans.get(x.participant) ?? 0) + 1);
+    const repeated = [...scans].filter(([, k]) => k > 1);
+    if (repeated.length)
+      out.push({
+        field: 'stats.blocks',
+        option: '--blocks',
+        message: `${repeated.length === 1 ? 'a participant has' : `${repeated.length} participants have`} several scans (${repeated[0][0]}: ${repeated[0][1]}${report.sessions ? ', one per session' : ''}): choose participant_id as the exchangeability blocks.`,
+      });
+  }
   const col = st.groupColumn;
   if (col && report.columns.some((c) => c.name === col)) {
     // A group comparison needs two subjects per group at least (a variance per group).
@@ -125,4 +139,12 @@ export function withDesign(st: StatsSettings, kind: DesignKind, column: string |
 /** A text field's value as a setting: blank → null. */
 export function textSetting(v: string): string | null {
   return v.trim() === '' ? null : v.trim();
+}
+
+/**
+ * The problems a view has no field for, shown once in its list (each of the others is shown under
+ * its field, and only there). `fields` are the fields the view shows problems under.
+ */
+export function unplacedProblems(problems: Problem[], fields: readonly string[]): Problem[] {
+  return problems.filter((p) => !fields.some((f) => p.field === f || p.field.startsWith(f + '.')));
 }

@@ -1,5 +1,14 @@
 /** The Study view's logic: the participants table, the QC report and the choice of group and covariates. */
-import type { CohortReport, ColumnInfo, CovariateValue, QcFinding, Severity } from '../../../electron/api.ts';
+import type {
+  CohortReport,
+  ColumnInfo,
+  CovariateValue,
+  QcFinding,
+  Severity,
+  StatsSettings,
+} from '../../../electron/api.ts';
+import { formulaColumns, statisticsRequested } from '../../../electron/contract.ts';
+import { parseTerm } from '../../../electron/engine/stats/formula.ts';
 
 export interface ParticipantRow {
   id: string;
@@ -105,7 +114,10 @@ export function filterFindings(findings: QcFinding[], filter: FindingFilter): Qc
 }
 
 export interface CohortSummary {
+  /** Scans (one per participant and session where the cohort has sessions). */
   subjects: number;
+  /** Distinct participants among the scans. */
+  participants: number;
   usable: number;
   excluded: number;
   errors: number;
@@ -126,6 +138,7 @@ export function cohortSummary(report: CohortReport, groupColumn: string | null):
   }
   return {
     subjects: report.subjects.length,
+    participants: new Set(report.subjects.map((s) => s.participant)).size,
     usable: usable.length,
     excluded: report.subjects.length - usable.length,
     errors: report.findings.filter((f) => f.severity === 'error').length,
@@ -152,4 +165,103 @@ export function effectChoices(report: CohortReport): string[] {
     .filter((c) => !ID_COLUMNS.has(c.name.toLowerCase()))
     .filter((c) => columnLevels(report, c.name).length >= 2)
     .map((c) => c.name);
+}
+
+/** The column a cohort's scans carry their session in (CohortReport.sessions non-null). */
+export const SESSION_COLUMN = 'session';
+/** The column naming each scan's participant, the exchangeability blocks of repeated scans. */
+export const PARTICIPANT_COLUMN = 'participant_id';
+
+/** Whether some participant has more than one scan (BIDS sessions): then the design needs blocks. */
+export function hasRepeatedScans(report: CohortReport): boolean {
+  const seen = new Set<string>();
+  for (const s of report.subjects) {
+    if (seen.has(s.participant)) return true;
+    seen.add(s.participant);
+  }
+  return false;
+}
+
+/** The columns a design names (group, effect, model terms, blocks, covariates). */
+function designColumns(st: StatsSettings): string[] {
+  return [
+    ...(st.groupColumn ? [st.groupColumn] : []),
+    ...(st.effect ? [st.effect] : []),
+    ...(st.model ? formulaColumns(st.model) : []),
+    ...(st.blocks ? [st.blocks] : []),
+  ];
+}
+
+/**
+ * The design proposed for a cohort just opened, from the settings in use. A design whose columns
+ * all exist in the cohort is kept; otherwise (or when none is chosen) the proposal is:
+ * - scans in sessions with a group column: the group × session interaction (model
+ *   `group*session`, test `group:session`), blocks participant_id;
+ * - scans in sessions without a group column: the effect of session, blocks participant_id;
+ * - one scan per participant: the group column ('group', 'diagnosis', …), if any.
+ * Where a participant has several scans, blocks participant_id are added to a kept design that
+ * has none (the design refuses repeated participants without blocks). Covariates that are no
+ * column of the cohort, or that are the effect itself, are dropped; a reference is kept only with
+ * a kept design.
+ */
+export function proposedDesign(report: CohortReport, st: StatsSettings): StatsSettings {
+  const names = new Set(report.columns.map((c) => c.name));
+  const repeated = hasRepeatedScans(report) && names.has(PARTICIPANT_COLUMN);
+  const chosen = statisticsRequested(st);
+  const keep = chosen && designColumns(st).every((c) => names.has(c));
+  let next: StatsSettings;
+  if (keep) {
+    next = { ...st, blocks: st.blocks ?? (repeated ? PARTICIPANT_COLUMN : null) };
+  } else {
+    const base: StatsSettings = {
+      ...st,
+      groupColumn: null,
+      effect: null,
+      model: null,
+      test: null,
+      reference: null,
+      blocks: repeated ? PARTICIPANT_COLUMN : null,
+    };
+    const sessions = report.sessions !== null && names.has(SESSION_COLUMN);
+    const group = defaultGroupColumn({
+      ...report,
+      columns: report.columns.filter((c) => c.name !== SESSION_COLUMN),
+    });
+    if (sessions && group)
+      next = { ...base, model: `${group}*${SESSION_COLUMN}`, test: `${group}:${SESSION_COLUMN}` };
+    else if (sessions) next = { ...base, effect: SESSION_COLUMN };
+    else next = { ...base, groupColumn: group };
+  }
+  const effect = next.groupColumn ?? next.effect;
+  return { ...next, covariates: next.covariates.filter((c) => names.has(c) && c !== effect) };
+}
+
+/**
+ * The column the design splits scans by, the service's rule for group curves and group
+ * filtrations: the group column, a categorical effect, or with a model the first categorical
+ * column of the tested term that is not the blocks column (group for group:session).
+ */
+export function designGroupColumn(st: StatsSettings | null, report: CohortReport | null): string | null {
+  if (!st) return null;
+  if (st.groupColumn) return st.groupColumn;
+  const categorical = (name: string) => report?.columns.find((c) => c.name === name)?.kind === 'categorical';
+  if (st.effect) return categorical(st.effect) ? st.effect : null;
+  if (!st.model || !st.test) return null;
+  let term: string[];
+  try {
+    term = parseTerm(st.test);
+  } catch {
+    return null;
+  }
+  return term.find((c) => c !== st.blocks && categorical(c)) ?? null;
+}
+
+/** A line under the design fields for a cohort whose scans come in sessions, or null without sessions. */
+export function sessionsDesignHint(report: CohortReport): string | null {
+  if (!report.sessions) return null;
+  return (
+    `Scans in ${report.sessions.length} sessions (${report.sessions.join(', ')}): repeated scans of a participant ` +
+    `are not exchangeable, so choose ${PARTICIPANT_COLUMN} as the exchangeability blocks; with a group column, ` +
+    `test the group × session interaction (model group*${SESSION_COLUMN}, test group:${SESSION_COLUMN}).`
+  );
 }
