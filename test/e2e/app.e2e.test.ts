@@ -8,7 +8,39 @@ import { crc32 } from 'node:zlib';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { hasChromium, launch, type Browser } from './support/browser.ts';
-import { artefacts, messyCohort, startApp, type RunningApp } from './support/app.ts';
+import { artefacts, messyCohort, sampleCohort, startApp, type RunningApp } from './support/app.ts';
+
+/**
+ * The sample as its files lay it out (BIDS): participants and their group from participants.tsv,
+ * scans from the sub-XX/ses-YY/func/…_relmat.tsv files, regions from the rows of nodes.tsv. Every count the
+ * tests expect is derived from these, not from what the app prints.
+ */
+function sampleLayout() {
+  const table = (file: string) =>
+    readFileSync(join(sampleCohort, file), 'utf8')
+      .trimEnd()
+      .split('\n')
+      .map((l) => l.split('\t'));
+  const [head, ...rows] = table('participants.tsv');
+  const groupAt = head.indexOf('group');
+  const scans: Array<{ participant: string; session: string; group: string }> = [];
+  for (const r of rows)
+    for (const ses of readdirSync(join(sampleCohort, r[0])).filter((d) => d.startsWith('ses-')))
+      for (const f of readdirSync(join(sampleCohort, r[0], ses, 'func')))
+        if (f.endsWith('_relmat.tsv')) scans.push({ participant: r[0], session: ses, group: r[groupAt] });
+  const groups = [...new Set(rows.map((r) => r[groupAt]))].sort();
+  return {
+    participants: rows.length,
+    scans,
+    sessions: [...new Set(scans.map((x) => x.session))],
+    groups,
+    scansOf: (g: string) => scans.filter((x) => x.group === g).length,
+    regions: table('nodes.tsv').length - 1,
+  };
+}
+const sample = sampleLayout();
+/** The Regions chart draws the 40 regions of largest |g| (rankedBarFigure's top in lib/regions.ts). */
+const CHART_TOP = 40;
 
 let app: RunningApp;
 let browser: Browser;
@@ -70,22 +102,56 @@ describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
     const summary = page.getByTestId('cohort-summary');
     await summary.waitFor();
     const text = (await summary.textContent()) ?? '';
-    expect(text).toMatch(/40\s*subjects/);
-    expect(text).toMatch(/60\s*regions/);
-    expect(text).toMatch(/20\s*training/);
+    // The data: 24 participants × 2 sessions = 48 scans of 60 regions, 12 + 12 participants per group.
+    expect(sample.sessions).toHaveLength(2);
+    expect(text).toMatch(new RegExp(`${sample.scans.length}\\s*scans`));
+    expect(text).toMatch(new RegExp(`${sample.participants}\\s*participants`));
+    expect(text).toMatch(new RegExp(`${sample.sessions.length}\\s*sessions`));
+    expect(text).toMatch(new RegExp(`${sample.regions}\\s*regions`));
+    for (const g of sample.groups) expect(text).toMatch(new RegExp(`${sample.scansOf(g)}\\s*${g}`));
     await page.getByRole('heading', { name: 'Quality control' }).waitFor();
-    expect(await page.locator('select[name=group-column]').inputValue()).toBe('group');
+    // Scans in sessions: the proposed design is the group × session interaction with the
+    // participant's scans as exchangeability blocks (the design refuses repeated scans without).
+    expect(await page.locator('select[name=design]').inputValue()).toBe('model');
+    expect(await page.locator('input[name=model]').inputValue()).toBe('group*session');
+    expect(await page.locator('input[name=test]').inputValue()).toBe('group:session');
+    expect(await page.locator('select[name=blocks]').inputValue()).toBe('participant_id');
+    expect(await page.getByTestId('sessions-hint').textContent()).toMatch(/participant_id/);
     await shot('1-study');
+  });
+
+  it('keeps the token out of the address after the first load and works through the cookie', async () => {
+    // The address printed by npm start carries the token; the first load traded it for a cookie.
+    expect(new URL(app.server.url).searchParams.get('token')).toBe(app.server.token);
+    expect(page.url()).not.toContain('token=');
+    expect(page.url()).not.toContain(app.server.token);
+    // HttpOnly: the page's scripts cannot read it…
+    expect(await page.evaluate(() => document.cookie)).not.toContain(app.server.token);
+    // …yet the page's API calls carry it: the sample opened above, and a call without the header passes.
+    const status = await page.evaluate(
+      async () =>
+        (
+          await fetch('/api/info', {
+            method: 'POST',
+            headers: { 'content-type': 'application/json' },
+            body: '[]',
+          })
+        ).status,
+    );
+    expect(status).toBe(200);
+    // Without the cookie (outside the browser) the same call is refused.
+    const bare = await fetch(new URL('/api/info', app.server.url), { method: 'POST', body: '[]' });
+    expect(bare.status).toBe(401);
   });
 
   it('runs the analysis with a progress bar and reaches the results', async () => {
     const text = await runAnalysis();
-    expect(text).toMatch(/40 computed, 0 from cache,\s+0 failed/);
+    expect(text).toMatch(new RegExp(`${sample.scans.length} computed, 0 from cache,\\s+0 failed`));
     expect(await page.getByRole('progressbar').getAttribute('aria-valuenow')).toBe('100');
     // The same settings again: every filtration comes from the cache, and the run panel says so.
     const again = await runAnalysis();
-    expect(again).toMatch(/0 computed, 40 from cache/);
-    await page.getByText(/Subjects \(40 from cache\)/).waitFor();
+    expect(again).toMatch(new RegExp(`0 computed, ${sample.scans.length} from cache`));
+    await page.getByText(new RegExp(`Subjects \\(${sample.scans.length} from cache\\)`)).waitFor();
     await shot('2-analysis');
   });
 
@@ -93,13 +159,16 @@ describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
     await tab('Groups');
     await drawn('curve-betti1');
     await drawn('curve-euler');
-    // One band and one mean per group: four traces, each with a drawn path.
+    // Scans split by group (the categorical column of the tested group:session term): one band
+    // and one mean per group.
     const lines = plot('curve-betti1').locator('.scatterlayer .trace');
-    expect(await lines.count()).toBe(4);
+    expect(await lines.count()).toBe(2 * sample.groups.length);
     const featureName = await page.locator('select[name=feature]').inputValue();
     expect(featureName).not.toBe('');
     await drawn(`distribution-${featureName}`);
-    expect(await plot(`distribution-${featureName}`).locator('.violinlayer .trace').count()).toBe(2);
+    expect(await plot(`distribution-${featureName}`).locator('.violinlayer .trace').count()).toBe(
+      sample.groups.length,
+    );
     await shot('3-groups');
   });
 
@@ -107,7 +176,9 @@ describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
     await tab('Regions');
     const measure = await page.locator('select[name=measure]').inputValue();
     await drawn(`regions-${measure}`);
-    expect(await plot(`regions-${measure}`).locator('.barlayer .point').count()).toBe(40);
+    expect(await plot(`regions-${measure}`).locator('.barlayer .point').count()).toBe(
+      Math.min(CHART_TOP, sample.regions),
+    );
     await drawn(`regions-${measure}-axial`);
     await drawn(`regions-${measure}-sagittal`);
     await shot('4-regions');
@@ -115,10 +186,14 @@ describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
 
   it('opens a subject, selects an interval and draws its cycle', async () => {
     await tab('Subject');
-    await page.locator('select[name=subject]').selectOption('sub-02');
+    // A scan's id is participant and session (BIDS): sub-02's ses-pre scan.
+    const scan = sample.scans.find((x) => x.participant === 'sub-02' && x.session === 'ses-pre');
+    expect(scan).toBeDefined();
+    const scanId = `${scan!.participant}_${scan!.session}`;
+    await page.locator('select[name=subject]').selectOption(scanId);
     await drawn('barcode');
     await drawn('persistence-diagram');
-    await drawn('matrix-sub-02');
+    await drawn(`matrix-${scanId}`);
     const rows = page.getByTestId('interval-table').locator('tbody tr');
     await rows.nth(2).waitFor();
     const id = (await rows.nth(2).locator('td').first().textContent())?.trim();
@@ -161,7 +236,7 @@ describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
     expect(written).toContain('provenance.json');
     const provenance = JSON.parse(readFileSync(join(target, 'provenance.json'), 'utf8'));
     expect(provenance.tool).toBe('loopwise');
-    expect(Object.keys(provenance.inputHashes)).toHaveLength(40);
+    expect(Object.keys(provenance.inputHashes)).toHaveLength(sample.scans.length);
     await shot('6-export');
 
     // A second export to the same folder is refused: nothing the user made is overwritten.
@@ -185,8 +260,8 @@ describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
     const tsv = saved.get('features.tsv')!;
     const sidecar = saved.get('features.provenance.json')!;
     const lines = readFileSync(tsv, 'utf8').trimEnd().split('\n');
-    expect(lines).toHaveLength(41);
-    expect(lines[0].split('\t')[0]).toBe('participant_id');
+    expect(lines).toHaveLength(sample.scans.length + 1);
+    expect(lines[0].split('\t').slice(0, 2)).toEqual(['participant_id', 'session']);
     expect(JSON.parse(readFileSync(sidecar, 'utf8')).tool).toBe('loopwise');
 
     await tab('Groups');

@@ -566,6 +566,8 @@ describe('designs for a cohort with sessions', () => {
     expect(settingsProblems(defaults.settings, st, longitudinal)).toEqual([]);
     // The scans are split by group (the first categorical column of the tested term but the blocks).
     expect(designGroupColumn(st, longitudinal)).toBe('group');
+    // Columns the formula names are in the model already: not offered as covariates.
+    expect(covariateChoices(longitudinal, null, st.model)).toEqual(['age', 'sex']);
   });
 
   it('proposes the effect of session where there is no group column', () => {

@@ -45,10 +45,19 @@ export function groupColumnChoices(report: CohortReport): string[] {
     .map((c) => c.name);
 }
 
-/** Columns that can enter the model as covariates: everything but the group column and identifiers. */
-export function covariateChoices(report: CohortReport, groupColumn: string | null): string[] {
+/**
+ * Columns that can enter the model as covariates: everything but the group column, identifiers and
+ * the columns a model formula already names.
+ */
+export function covariateChoices(
+  report: CohortReport,
+  groupColumn: string | null,
+  model: string | null = null,
+): string[] {
+  const inModel = model ? formulaColumns(model) : [];
   return report.columns
     .filter((c) => c.name !== groupColumn && !ID_COLUMNS.has(c.name.toLowerCase()))
+    .filter((c) => !inModel.includes(c.name))
     .filter((c) => columnLevels(report, c.name).length >= 2)
     .map((c) => c.name);
 }
