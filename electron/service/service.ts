@@ -492,7 +492,7 @@ export class LoopwiseService implements LoopwiseApi {
         return name;
       },
       format,
-      progress: (phase, done, total, message) =>
+      progress: (phase, done, total, message, etaMs) =>
         this.emit({
           runId: state.runId,
           phase,
@@ -501,11 +501,12 @@ export class LoopwiseService implements LoopwiseApi {
           reused: 0,
           currentSubject: null,
           elapsedMs: 0,
-          etaMs: null,
+          etaMs: etaMs ?? null,
           failures: [],
           ...(message !== undefined ? { message } : {}),
         }),
       cancelled: () => state.cancelRequested,
+      workers: this.pool?.size ?? this.options.workers ?? defaultPoolSize(),
     };
   }
 
