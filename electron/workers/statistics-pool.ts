@@ -11,10 +11,16 @@
 import { Worker } from 'node:worker_threads';
 import type { StatisticsReply, StatisticsTask } from './statistics.ts';
 
-/** The worker's entry: a tsx bootstrap from sources, the compiled worker beside a bundle (build-node.js). */
+/**
+ * The worker's entry: a tsx bootstrap from sources, the compiled worker beside a bundle (build-node.js,
+ * renderer/vite.config.ts). Worker threads cannot start from inside an Electron asar archive, and
+ * the packaged app unpacks its bundle beside it (as for the filtration worker, main.ts).
+ */
 export const STATISTICS_WORKER_ENTRY = new URL(
-  import.meta.url.endsWith('.ts') ? './statistics-bootstrap.js' : './statistics-worker.js',
-  import.meta.url,
+  new URL(
+    import.meta.url.endsWith('.ts') ? './statistics-bootstrap.js' : './statistics-worker.js',
+    import.meta.url,
+  ).href.replace('/app.asar/', '/app.asar.unpacked/'),
 );
 
 export class StatisticsTaskError extends Error {
