@@ -33,7 +33,7 @@ import { diagramDistanceMatrix, finiteDiagram, metricName } from '../engine/stat
 import type { DiagramInput, DiagramMetric } from '../engine/stats/diagram-distance.ts';
 import { distanceRegression, jointLossTest } from '../engine/stats/diagram-tests.ts';
 import { classicalMds, umapEmbedding } from '../engine/stats/embedding.ts';
-import { alignFamily, familyPermutationInputs, familyResult } from '../engine/stats/family.ts';
+import { alignFamily, familyPermutationInputs } from '../engine/stats/family.ts';
 import type { FamilyFeature, FamilyResult, FeatureFamily } from '../engine/stats/family.ts';
 import { finishPermutationTest, preparePermutationTest } from '../engine/stats/permutation.ts';
 import { diagramTestsTable, statsTable } from '../engine/stats/tables.ts';
@@ -332,8 +332,9 @@ export function cohortStages(): RunHooks {
       }, 20);
       const rowParts = metric.kind === 'sliced-wasserstein' ? 0 : 4 * pool.size;
       const distanceParts = rowParts > 0 ? distanceRowRanges(idx.length, rowParts).length : 0;
-      // Progress: a step per permutation chunk, per distance-matrix part, per dimension's diagram tests.
-      const total = jobs.reduce((a, j) => a + j.prep.chunks, 0) + dimensions * (distanceParts + 1);
+      // Progress: a step per permutation chunk and family result, per distance-matrix part, per
+      // dimension's diagram tests.
+      const total = jobs.reduce((a, j) => a + j.prep.chunks + 1, 0) + dimensions * (distanceParts + 1);
       const started = performance.now();
       let done = 0;
       const step = (message: string): void => {
@@ -344,7 +345,7 @@ export function cohortStages(): RunHooks {
       try {
         ctx.progress('statistics', 0, total, jobs[0]?.family.name ?? 'diagram tests', null);
         let taskId = 0;
-        const tests = await Promise.all(
+        const results: FamilyResult[] = await Promise.all(
           jobs.map(async (job) => {
             const chunks = await Promise.all(
               Array.from({ length: job.prep.chunks }, async (_, chunk) => {
@@ -365,15 +366,26 @@ export function cohortStages(): RunHooks {
                 return reply.chunks;
               }),
             );
-            return finishPermutationTest(job.prep, chunks.flat());
+            const permutation = finishPermutationTest(job.prep, chunks.flat());
+            // The GLM and the bootstrap effect sizes of the family, on a worker too.
+            const reply = await pool.run({
+              kind: 'family-result',
+              taskId: taskId++,
+              design,
+              contrast: job.contrast,
+              family: job.family,
+              aligned: job.aligned,
+              permutation,
+              options,
+            });
+            if (reply.kind !== 'family-result') throw new Error('unexpected statistics reply');
+            step(`${job.family.name}, ${job.contrast.name}: effect sizes`);
+            return reply.result;
           }),
         );
         if (ctx.cancelled()) return {};
-        const results: FamilyResult[] = jobs.map((job, k) => {
-          const r = familyResult(design, job.contrast, job.family, job.aligned, tests[k], options);
-          for (const x of r.excluded) excluded.push({ family: job.family.name, ...x });
-          return r;
-        });
+        for (const [k, r] of results.entries())
+          for (const x of r.excluded) excluded.push({ family: jobs[k].family.name, ...x });
         const { table: stats, warnings } = statsTable(results);
         warnings.unshift(...design.notes);
         if (design.excluded.length > 0) {

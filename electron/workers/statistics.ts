@@ -1,17 +1,22 @@
 /**
  * The statistics stage's work as tasks for worker threads: chunks of a family's permutation test
- * (permutation.ts, permutationChunk) and rows of a subject × subject diagram distance matrix. A
+ * (permutation.ts, permutationChunk), a family's result from its merged test (family.ts,
+ * familyResult: the GLM and bootstrap effect sizes) and rows of a subject × subject diagram
+ * distance matrix. A
  * task's answer depends on the task alone, never on the thread or the order it runs in, so the
  * merged results are the same for any number of workers and the same as in-process.
  * No node:* imports: the same code runs in this thread when there are no workers.
  */
-import type { Contrast, Exchangeability } from '../engine/stats/design.ts';
+import type { Contrast, Design, Exchangeability } from '../engine/stats/design.ts';
 import { diagramDistance } from '../engine/stats/diagram-distance.ts';
 import type { DiagramMetric, DiagramPoint } from '../engine/stats/diagram-distance.ts';
+import { familyResult } from '../engine/stats/family.ts';
+import type { FamilyOptions, FamilyResult, FeatureFamily } from '../engine/stats/family.ts';
 import {
   permutationChunk,
   preparePermutationTest,
   type PermutationChunk,
+  type PermutationTest,
 } from '../engine/stats/permutation.ts';
 
 /** Some chunks of one family's permutation test; the worker prepares the test from these inputs. */
@@ -39,10 +44,23 @@ export interface DistanceRowsTask {
   to: number;
 }
 
-export type StatisticsTask = PermutationChunkTask | DistanceRowsTask;
+/** A family's result from its merged permutation test: GLM, FDR and the bootstrap effect sizes. */
+export interface FamilyResultTask {
+  kind: 'family-result';
+  taskId: number;
+  design: Design;
+  contrast: Contrast;
+  family: FeatureFamily;
+  aligned: Float64Array[];
+  permutation: PermutationTest;
+  options: FamilyOptions;
+}
+
+export type StatisticsTask = PermutationChunkTask | DistanceRowsTask | FamilyResultTask;
 
 export type StatisticsReply =
   | { kind: 'permutation-chunks'; taskId: number; chunks: PermutationChunk[] }
+  | { kind: 'family-result'; taskId: number; result: FamilyResult }
   /** d(i, j) for i in [from, to), j < i, row after row. */
   | { kind: 'distance-rows'; taskId: number; from: number; to: number; values: Float64Array };
 
@@ -58,6 +76,14 @@ export function runStatisticsTask(task: StatisticsTask): StatisticsReply {
       kind: 'permutation-chunks',
       taskId: task.taskId,
       chunks: task.chunks.map((c) => permutationChunk(prep, c)),
+    };
+  }
+  if (task.kind === 'family-result') {
+    const { design, contrast, family, aligned, permutation, options } = task;
+    return {
+      kind: 'family-result',
+      taskId: task.taskId,
+      result: familyResult(design, contrast, family, aligned, permutation, options),
     };
   }
   const { diagrams, metric, from, to } = task;
@@ -76,6 +102,7 @@ export function pairsBefore(row: number): number {
 /** Buffers a reply can hand over by transfer. */
 export function statisticsTransferList(reply: StatisticsReply): ArrayBuffer[] {
   if (reply.kind === 'distance-rows') return [reply.values.buffer as ArrayBuffer];
+  if (reply.kind === 'family-result') return [];
   return reply.chunks.flatMap((c) => [c.count.buffer as ArrayBuffer, c.maxima.buffer as ArrayBuffer]);
 }
 

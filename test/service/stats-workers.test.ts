@@ -85,7 +85,7 @@ describe('statistics on worker threads', () => {
     expect(ev.slice(1).every((e) => typeof e.etaMs === 'number' && e.etaMs >= 0)).toBe(true);
     expect(ev.at(-1)!.etaMs).toBe(0);
 
-    // The scalar family in-process, from the features.tsv the run wrote.
+    // The scalar family in-process (testFamily), from the features.tsv the run wrote.
     const read = (file: string) => {
       const [head, ...lines] = readFileSync(join(runs[0].outDir, file), 'utf8').trimEnd().split('\n');
       const cols = head.split('\t');
@@ -123,6 +123,12 @@ describe('statistics on worker threads', () => {
       const row = scalarRows[j];
       if (row[col('p_uncorrected')] === 'n/a') return;
       expect(Number(row[col('p_uncorrected')])).toBe(result.permutation.pUncorrected[j]);
+      expect(Number(row[col('p_fwer')])).toBe(result.permutation.pFwer[j]);
+      expect(Number(row[col('q_fdr')])).toBe(result.qFdr[j]);
+      // The bootstrap interval of the adjusted difference, computed on a worker, as in-process.
+      if (result.effect.kind !== 'adjusted-d') throw new Error(`effect ${result.effect.kind}`);
+      expect(Number(row[col('effect_size')])).toBe(result.effect.sizes.value[j]);
+      expect(Number(row[col('effect_low')])).toBe(result.effect.sizes.low[j]);
       expect(Number(row[col('permutations')])).toBe(600);
     });
   });
