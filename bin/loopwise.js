@@ -6,11 +6,15 @@
 import { isBuildFresh } from './build-node.js';
 
 let main;
+let endQuietlyOnClosedPipe;
 if (process.env.LOOPWISE_FROM_SOURCE !== '1' && isBuildFresh()) {
-  ({ main } = await import('../dist-node/cli.js'));
+  ({ main, endQuietlyOnClosedPipe } = await import('../dist-node/cli.js'));
 } else {
   const { register } = await import('tsx/esm/api');
   register();
-  ({ main } = await import('../electron/cli.ts'));
+  ({ main, endQuietlyOnClosedPipe } = await import('../electron/cli.ts'));
 }
-process.exitCode = await main(process.argv.slice(2));
+const argv = process.argv.slice(2);
+// A reader that stops early (`| head`) ends the command quietly instead of with an EPIPE trace.
+endQuietlyOnClosedPipe(argv[0]);
+process.exitCode = await main(argv);

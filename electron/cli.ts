@@ -44,10 +44,43 @@ Run 'loopwise <command> --help' for a command's options; 'loopwise --version' pr
 /** `loopwise X.Y.Z (engine N)`: the package's version and the engine's (part of every cache key). */
 export const VERSION_LINE = `loopwise ${pkg.version} (engine ${ENGINE_VERSION})`;
 
+const closed = { out: false, err: false };
+
 const stdio: CliIO = {
-  out: (t) => process.stdout.write(t),
-  err: (t) => process.stderr.write(t),
+  out: (t) => {
+    if (!closed.out) process.stdout.write(t);
+  },
+  err: (t) => {
+    if (!closed.err) process.stderr.write(t);
+  },
 };
+
+/** Commands whose product is what they print: once the reader has gone, nothing is left to do. */
+const PRINTING = new Set(['diagram', 'validate']);
+
+/**
+ * A reader that stops early (`loopwise validate … | head -1`) closes the pipe, and the next write
+ * fails with EPIPE. That is no error of the command. A printing command (diagram, validate, help)
+ * ends at once, quietly, with exit code 0, as filters commonly do; analyze and merge, whose product
+ * is files, stop writing to the closed stream and finish their job.
+ */
+export function endQuietlyOnClosedPipe(
+  command: string | undefined,
+  streams: { out: NodeJS.EventEmitter; err: NodeJS.EventEmitter } = {
+    out: process.stdout,
+    err: process.stderr,
+  },
+  exit: (code: number) => void = (code) => process.exit(code),
+): void {
+  for (const which of ['out', 'err'] as const) {
+    streams[which].on('error', (e: NodeJS.ErrnoException) => {
+      if (e.code !== 'EPIPE') throw e;
+      closed[which] = true;
+      if (which === 'out' && (command === undefined || PRINTING.has(command) || !(command in COMMANDS)))
+        exit(0);
+    });
+  }
+}
 
 export async function main(argv: string[], io: CliIO = stdio): Promise<number> {
   const [name, ...rest] = argv;

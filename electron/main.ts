@@ -25,13 +25,16 @@ export interface ElectronAppOptions {
   sampleCohort: string | null;
   defaultOutDir: string;
   version: string;
+  /** The folders this session may touch (grows through native dialogs); shared with the service's allowedRoots. */
+  roots?: Set<string>;
 }
 
 /** Wires the window, its security policy and the IPC bridge to the given service. */
 export function startElectronApp(api: LoopwiseApi, opts: ElectronAppOptions): void {
   const pageUrl = pathToFileURL(opts.indexHtml).href;
   // The folders this session may touch: grows only through native dialogs.
-  const roots = new Set<string>([opts.defaultOutDir]);
+  const roots = opts.roots ?? new Set<string>();
+  roots.add(opts.defaultOutDir);
   if (opts.sampleCohort) roots.add(opts.sampleCohort);
 
   const fromOurPage = (e: IpcMainInvokeEvent) => e.senderFrame?.url.split('#')[0].split('?')[0] === pageUrl;
@@ -144,7 +147,10 @@ async function boot(): Promise<void> {
   // Worker threads cannot start from inside the asar archive: the build unpacks dist-electron/.
   const workerDir = here.replace(`app.asar${sep}`, `app.asar.unpacked${sep}`);
   // The engine runs on worker threads; the build bundles their entry next to this file.
+  // The folders this session may touch, shared with the service so a cohort's files stay inside them.
+  const roots = new Set<string>();
   const api = createLoopwiseService({
+    allowedRoots: () => [...roots],
     cacheDir: join(app.getPath('userData'), 'cache'),
     workerEntry: pathToFileURL(join(workerDir, 'filtration-worker.js')),
   });
@@ -152,6 +158,7 @@ async function boot(): Promise<void> {
     indexHtml: join(appRoot, 'dist', 'index.html'),
     preload: join(here, 'preload.cjs'),
     sampleCohort: sample ?? null,
+    roots,
     defaultOutDir,
     version: app.getVersion(),
   });

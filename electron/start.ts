@@ -69,7 +69,10 @@ async function main(): Promise<void> {
   if (values.cohort) roots.push(resolve(values.cohort));
   if (existsSync(sampleRoot)) roots.push(sampleRoot);
 
-  const api = createLoopwiseService({ cacheDir: join(homedir(), '.cache', 'loopwise') });
+  const api = createLoopwiseService({
+    cacheDir: join(homedir(), '.cache', 'loopwise'),
+    allowedRoots: () => roots,
+  });
   const server = await startWebServer(api, {
     port: values.port ? Number(values.port) : 0,
     roots,

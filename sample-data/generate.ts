@@ -4,13 +4,16 @@
  *   npx tsx sample-data/generate.ts [outDir] [--force]   (outDir defaults to sample-data/; --force replaces
  *                                                        files that exist with other content)
  *
- * rhythm-study/        an invented 8-week rhythm-training study: 40 subjects (training 20, waitlist 20),
- *                      60 regions in 6 networks, one sample correlation matrix per subject.
+ * rhythm-study/        an invented 8-week rhythm-training study as a BIDS tree with sessions: 24
+ *                      participants (training 12, waitlist 12), each scanned before (ses-pre) and after
+ *                      (ses-post) the 8 weeks; 60 regions in 6 networks, one sample correlation matrix per scan.
  * rhythm-study-messy/  a small cohort with deliberately broken files, for the quality-control view.
  *
- * Every matrix is the sample correlation of a latent-factor block model (electron/engine/generator);
- * the training group carries a planted effect: four nodes each bridge to a second network,
- * forming a ring of cross-network coupling (see sample-data/README.md). Invented demo data.
+ * Every matrix is the sample correlation of a latent-factor block model (electron/engine/generator).
+ * A participant's own draws (block correlations, a personal bridging node) are shared by both of
+ * their scans: a subject random effect. The training group carries a planted effect after training
+ * only (a group × session interaction): four nodes each bridge to a second network, forming a ring
+ * of cross-network coupling (see sample-data/README.md). Invented demo data.
  */
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
@@ -22,13 +25,16 @@ import {
   sampleCorrelation,
   withPlantedEffect,
   type BlockModelSpec,
+  type Overlap,
 } from '../electron/engine/generator/index.ts';
 import type { SquareMatrix } from '../electron/engine/types.ts';
 
 export const STUDY = 'rhythm-study';
 export const MESSY = 'rhythm-study-messy';
 const SEED = 20260508;
-const TIME_POINTS = 240; // 8 minutes at a 2-s repetition time
+const TIME_POINTS = 240; // the quality-control cohort: 8 minutes at a 2-s repetition time
+/** The main study: 8 minutes at a 0.8-s (multiband) repetition time. */
+const STUDY_TIME_POINTS = 600;
 
 interface Network {
   code: string;
@@ -90,7 +96,9 @@ export const PLANTED: Array<{ label: string; target: string }> = [
 ];
 export const PLANTED_GROUP = 'training';
 /** Mean planted share π (module variance moved to the target network) in the training group. */
-export const PLANTED_SHARE = 0.3;
+export const PLANTED_SHARE = 0.35;
+/** The same in the quality-control cohort. */
+const MESSY_SHARE = 0.3;
 
 /** The block model everyone shares; a subject varies it slightly (see subjectSpec). */
 export const BASE = { within: 0.5, nested: 0.18, between: 0.1 };
@@ -138,7 +146,7 @@ export function subjectSpec(p: Participant, nodes: NodeRow[], rng: Rng): BlockMo
       kind: 'bridge',
       nodes: PLANTED.map((q) => indexOf(nodes, q.label)),
       targets: PLANTED.map((q) => moduleOf(q.target)),
-      share: clamp(PLANTED_SHARE + 0.05 * gauss(), 0.15, 0.45),
+      share: clamp(MESSY_SHARE + 0.05 * gauss(), 0.15, 0.45),
     });
   }
   return spec;
@@ -156,21 +164,143 @@ function moduleOf(network: string): number {
   return m;
 }
 
-export interface Study {
-  nodes: NodeRow[];
-  participants: Participant[];
-  matrices: SquareMatrix[];
+/** The two scans of everyone, in this order: before and after the 8 weeks. */
+export const SESSIONS = ['pre', 'post'] as const;
+export type Session = (typeof SESSIONS)[number];
+/** Participants in the main study (half per arm). */
+export const STUDY_SIZE = 24;
+
+/** What a participant keeps across sessions: the subject random effect. */
+export interface Trait {
+  within: number;
+  nested: number;
+  between: number;
+  /** Planted share after training (training arm only; drawn for everyone, used by the trained). */
+  share: number;
+  /** A personal bridge: one region that also loads on another network, in both scans. */
+  quirk: Overlap;
 }
 
-/** The main demo study, in memory. Subject k's draws come from its own seed, so one subject can be regenerated alone. */
-export function buildStudy(count = 40): Study {
-  const nodes = nodeTable();
-  const people = participants(count, createRng(SEED));
-  const matrices = people.map((p, k) => {
-    const rng = createRng(SEED + 1000 + k);
-    return sampleCorrelation(factorModel(subjectSpec(p, nodes, rng)), TIME_POINTS, rng);
+export interface Person {
+  id: string;
+  group: 'training' | 'waitlist';
+  age: number;
+  sex: 'F' | 'M';
+  trait: Trait;
+}
+
+export interface Scan {
+  person: Person;
+  session: Session;
+  fd_mean: number;
+  matrix: SquareMatrix;
+}
+
+export interface Study {
+  nodes: NodeRow[];
+  people: Person[];
+  /** Participant by participant, sessions in SESSIONS order. */
+  scans: Scan[];
+}
+
+const clamp = (x: number, lo: number, hi: number): number => Math.min(hi, Math.max(lo, x));
+
+/** The participants of the longitudinal study and their traits (everything a participant carries into both scans). */
+function people(count: number, nodes: NodeRow[], rng: Rng, seed: number): Person[] {
+  const groups: Array<Person['group']> = [];
+  for (let i = 0; i < count; i++) groups.push(i < count / 2 ? 'training' : 'waitlist');
+  shuffle(groups, rng);
+  // Regions that may carry a personal bridge: not the planted four, not the everyone-overlap.
+  const free = nodes
+    .map((r, i) => ({ r, i }))
+    .filter(({ r }) => !PLANTED.some((q) => q.label === r.label) && r.label !== 'R_DMN_2');
+  return groups.map((group, k) => {
+    const own = createRng(seed + 2000 + k);
+    const gauss = gaussianSource(own);
+    const between = clamp(BASE.between + 0.02 * gauss(), 0.03, 0.18);
+    const nested = clamp(BASE.nested + 0.02 * gauss(), between, 0.28);
+    const within = clamp(BASE.within + 0.03 * gauss(), nested + 0.18, 0.66);
+    const node = free[own.int(free.length)];
+    const others = NETWORKS.map((_, m) => m).filter((m) => m !== node.r.module);
+    return {
+      id: `sub-${String(k + 1).padStart(2, '0')}`,
+      group,
+      age: 19 + rng.int(17),
+      sex: rng.next() < 0.5 ? 'F' : 'M',
+      trait: {
+        within,
+        nested,
+        between,
+        share: clamp(PLANTED_SHARE + 0.05 * gauss(), 0.2, 0.5),
+        quirk: { node: node.i, module: others[own.int(others.length)], share: 0.05 + 0.07 * own.next() },
+      },
+    };
   });
-  return { nodes, participants: people, matrices };
+}
+
+/**
+ * One scan's model: the participant's block correlations with a smaller session jitter, head
+ * motion (fd) adding a little global coupling, the overlaps everyone and this participant have,
+ * and — in the training arm after training only — the planted bridges.
+ */
+export function scanSpec(
+  p: Person,
+  session: Session,
+  fd: number,
+  nodes: NodeRow[],
+  rng: Rng,
+): BlockModelSpec {
+  const gauss = gaussianSource(rng);
+  const motion = 0.6 * (fd - 0.1);
+  const between = clamp(p.trait.between + 0.01 * gauss() + motion, 0.02, 0.2);
+  const nested = clamp(p.trait.nested + 0.01 * gauss() + motion, between, 0.3);
+  const within = clamp(p.trait.within + 0.015 * gauss(), nested + 0.15, 0.7);
+  let spec: BlockModelSpec = {
+    modules: nodes.map((r) => r.module),
+    within,
+    between,
+    nesting: { superOf: NETWORKS.map((n) => n.family), correlation: nested },
+    // In everyone: a default-network node shares a fifth of its module variance with frontoparietal.
+    overlaps: [
+      { node: indexOf(nodes, 'R_DMN_2'), module: moduleOf('frontoparietal'), share: 0.2 },
+      p.trait.quirk,
+    ],
+  };
+  if (p.group === PLANTED_GROUP && session === 'post') {
+    spec = withPlantedEffect(spec, {
+      kind: 'bridge',
+      nodes: PLANTED.map((q) => indexOf(nodes, q.label)),
+      targets: PLANTED.map((q) => moduleOf(q.target)),
+      share: p.trait.share,
+    });
+  }
+  return spec;
+}
+
+/** The main demo study, in memory. Each scan's draws come from its own seed, so one scan can be regenerated alone. */
+export function buildStudy(count = STUDY_SIZE, seed = SEED): Study {
+  const nodes = nodeTable();
+  const rng = createRng(seed);
+  const persons = people(count, nodes, rng, seed);
+  const scans: Scan[] = [];
+  persons.forEach((person, k) => {
+    SESSIONS.forEach((session, s) => {
+      const own = createRng(seed + 3000 + 2 * k + s);
+      const fd = Math.round((0.07 + 0.05 * Math.abs(gaussianSource(own)())) * 1000) / 1000;
+      const matrix = sampleCorrelation(
+        factorModel(scanSpec(person, session, fd, nodes, own)),
+        STUDY_TIME_POINTS,
+        own,
+      );
+      scans.push({ person, session, fd_mean: fd, matrix });
+    });
+  });
+  return { nodes, people: persons, scans };
+}
+
+/** Where a scan's matrix lives in the BIDS tree, relative to the study folder. */
+export function scanPath(id: string, session: Session): string {
+  return `${id}/ses-${session}/func/${id}_ses-${session}_task-rest_desc-corr_relmat.tsv`;
 }
 
 /** Six significant digits, without trailing zeros. */
@@ -188,6 +318,30 @@ export function matrixTsv(m: SquareMatrix): string {
   }
   return lines.join('\n') + '\n';
 }
+
+function studyParticipantsTsv(persons: Person[]): string {
+  const lines = ['participant_id\tgroup\tage\tsex'];
+  for (const p of persons) lines.push([p.id, p.group, p.age, p.sex].join('\t'));
+  return lines.join('\n') + '\n';
+}
+
+function sessionsTsv(scans: Scan[]): string {
+  const lines = ['session_id\tfd_mean'];
+  for (const s of scans) lines.push([`ses-${s.session}`, s.fd_mean.toFixed(3)].join('\t'));
+  return lines.join('\n') + '\n';
+}
+
+const DATASET_DESCRIPTION =
+  JSON.stringify(
+    {
+      Name: 'rhythm-study (invented demo data)',
+      BIDSVersion: '1.9.0',
+      DatasetType: 'derivative',
+      GeneratedBy: [{ Name: 'loopwise sample-data/generate.ts' }],
+    },
+    null,
+    2,
+  ) + '\n';
 
 function participantsTsv(people: Participant[]): string {
   const lines = ['participant_id\tgroup\tage\tsex\tfd_mean'];
@@ -265,9 +419,14 @@ export function buildMessy(): Map<string, string | Uint8Array> {
 export function sampleFiles(): Map<string, string | Uint8Array> {
   const files = new Map<string, string | Uint8Array>();
   const study = buildStudy();
-  files.set(`${STUDY}/participants.tsv`, participantsTsv(study.participants));
+  files.set(`${STUDY}/dataset_description.json`, DATASET_DESCRIPTION);
+  files.set(`${STUDY}/participants.tsv`, studyParticipantsTsv(study.people));
   files.set(`${STUDY}/nodes.tsv`, nodesTsv(study.nodes));
-  study.participants.forEach((p, k) => files.set(`${STUDY}/${p.id}_conn.tsv`, matrixTsv(study.matrices[k])));
+  for (const p of study.people) {
+    const mine = study.scans.filter((s) => s.person === p);
+    files.set(`${STUDY}/${p.id}/${p.id}_sessions.tsv`, sessionsTsv(mine));
+    for (const s of mine) files.set(`${STUDY}/${scanPath(p.id, s.session)}`, matrixTsv(s.matrix));
+  }
   for (const [name, content] of buildMessy()) files.set(`${MESSY}/${name}`, content);
   return files;
 }

@@ -30,6 +30,8 @@ filtrations and (with --group) statistics, and writes into DIR:
   group-intervals.tsv, group-nodes.tsv   the filtration of each group's mean matrix (with --group)
   stats.tsv, diagram-tests.tsv, embedding.tsv   group statistics (with --group)
   provenance.json  software and engine version, every setting, the grid, input files with SHA-256, time
+Where file names carry BIDS sessions (ses-pre), each scan is a row: every table above with a
+participant_id column then has a session column right after it.
 Loopwise is a research tool, not a diagnostic device.
 Finished subjects are cached (DIR/.loopwise-cache, or --cache): a run that is interrupted resumes
 where it stopped, and a re-run that changes only statistics settings recomputes nothing.

@@ -76,6 +76,22 @@ export function toDistances(matrix: SquareMatrix, options: TransformOptions): Di
     );
   }
 
+  // The diagonal is ignored, but an infinite one (atanh(1) = ∞) or one far beyond 1 says the
+  // values are Fisher z, not correlations, even when every other value lies in [−1, 1].
+  if (options.input === 'correlation' && n >= 2) {
+    let z = true;
+    for (let i = 0; i < n && z; i++) {
+      const d = values[i * n + i];
+      if (!(d === Infinity || d === -Infinity || (Number.isFinite(d) && Math.abs(d) > 3))) z = false;
+    }
+    if (z) {
+      throw new MatrixError(
+        `looks like Fisher z (diagonal ${values[0]}): give correlations (tanh of the values), or set the diagonal to 1 if they already are correlations`,
+        [0, 0],
+      );
+    }
+  }
+
   let scale = 0;
   for (let i = 0; i < n; i++) {
     for (let j = 0; j < n; j++) {
@@ -128,7 +144,11 @@ function transformValue(
       if (!Number.isFinite(v)) throw new MatrixError(`correlation ${v} ${at} is not finite`, [i, j]);
       if (v > 1 + 1e-9 || v < -1 - 1e-9) {
         throw new MatrixError(
-          `correlation ${v} ${at} lies outside [−1, 1] (Fisher-z values? back-transform with tanh first)`,
+          `correlation ${v} ${at} lies outside [−1, 1] (${
+            Number.isInteger(v)
+              ? 'a whole number: counts or a label image? counts are weights (--input weight)'
+              : 'Fisher-z values? back-transform with tanh first'
+          })`,
           [i, j],
         );
       }

@@ -13,6 +13,10 @@ export interface Matrix2D {
   colLabels: string[] | null;
   /** Names from a first label column, when the file had one. */
   rowLabels: string[] | null;
+  /** The stored type when the file has one ('float64', 'int8', 'uint16', 'bool', ...). */
+  dtype?: string;
+  /** What the reader noticed without refusing the file (e.g. the text was not UTF-8). */
+  notes?: Array<{ code: string; message: string }>;
 }
 
 /**
@@ -23,6 +27,8 @@ export interface NdArray {
   shape: number[];
   order: 'C' | 'F';
   data: Float64Array;
+  /** The stored type ('float64', 'int8', 'uint16', 'bool', ...). */
+  dtype?: string;
 }
 
 /** Offset of element (a, b, c) of a 3-D array. */
@@ -52,10 +58,11 @@ export function as2D(file: string, arr: NdArray): Matrix2D {
     );
   }
   const [rows, cols] = arr.shape;
-  if (arr.order === 'C') return { rows, cols, values: arr.data, colLabels: null, rowLabels: null };
+  const dtype = arr.dtype ? { dtype: arr.dtype } : {};
+  if (arr.order === 'C') return { rows, cols, values: arr.data, colLabels: null, rowLabels: null, ...dtype };
   const values = new Float64Array(rows * cols);
   for (let j = 0; j < cols; j++) for (let i = 0; i < rows; i++) values[i * cols + j] = arr.data[i + rows * j];
-  return { rows, cols, values, colLabels: null, rowLabels: null };
+  return { rows, cols, values, colLabels: null, rowLabels: null, ...dtype };
 }
 
 /** The index-th 2-D slice of a 3-D stack along `axis`, row-major. */
@@ -72,5 +79,5 @@ export function stackSlice(arr: NdArray, axis: 0 | 2, index: number): Matrix2D {
         ];
     }
   }
-  return { rows, cols, values, colLabels: null, rowLabels: null };
+  return { rows, cols, values, colLabels: null, rowLabels: null, ...(arr.dtype ? { dtype: arr.dtype } : {}) };
 }

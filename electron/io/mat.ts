@@ -7,9 +7,10 @@
  * refused with a message saying how to re-save it.
  */
 import { readFile } from 'node:fs/promises';
-import { inflateSync } from 'node:zlib';
+import { constants as zlibConstants, inflateSync } from 'node:zlib';
 import type { NdArray } from './array.ts';
 import { InputFileError, fsError } from './errors.ts';
+import { excerpt } from './text.ts';
 
 // Data types (miXXX) and array classes (mxXXX_CLASS) of the level-5 format.
 const MI_MATRIX = 14;
@@ -104,11 +105,12 @@ function parseMatrix(file: string, body: Buffer, le: boolean, index: number): Ma
   const flagWord = le ? flags.data.readUInt32LE(0) : flags.data.readUInt32BE(0);
   const cls = flagWord & 0xff;
   const complex = (flagWord & 0x0800) !== 0;
+  const logical = (flagWord & 0x0200) !== 0;
   const dimsEl = readElement(file, body, flags.next, le, `the dimensions of variable ${index + 1}`);
   const dims = intsOf(dimsEl, le);
   const nameEl = readElement(file, body, dimsEl.next, le, `the name of variable ${index + 1}`);
-  const name = nameEl.data.toString('latin1');
-  const className = CLASS_NAMES[cls] ?? `class ${cls}`;
+  const name = excerpt(nameEl.data.toString('latin1').replace(/\0+$/, ''), 63);
+  const className = logical ? 'logical' : (CLASS_NAMES[cls] ?? `class ${cls}`);
   const numeric = NUMERIC_CLASSES.has(cls) && !complex;
   const realAt = nameEl.next;
   return {
@@ -141,12 +143,101 @@ function parseMatrix(file: string, body: Buffer, le: boolean, index: number): Ma
           'truncated',
         );
       }
+      if (real.data.length > count * t.size) {
+        throw new InputFileError(
+          file,
+          `variable '${name}' stores ${Math.floor(real.data.length / t.size)} values but its dimensions (${dims.join('×')}) hold ${count}: corrupt`,
+          'bad-format',
+        );
+      }
       const dv = new DataView(real.data.buffer, real.data.byteOffset, real.data.byteLength);
       const data = new Float64Array(count);
       for (let k = 0; k < count; k++) data[k] = t.get(dv, k * t.size, le);
-      return { shape: dims, order: 'F', data };
+      return { shape: dims, order: 'F', data, dtype: className === 'logical' ? 'bool' : className };
     },
   };
+}
+
+/** The largest inflated variable accepted (2 GiB): a hard cap whatever a header declares. */
+export const MAX_INFLATED_BYTES = 2 ** 31;
+/** Inflated bytes tolerated beyond what a compressed variable's own tag declares. */
+const INFLATE_MARGIN = 4096;
+
+const bytesText = (n: number): string =>
+  n >= 2 ** 30
+    ? `${(n / 2 ** 30).toFixed(1)} GiB`
+    : n >= 2 ** 20
+      ? `${(n / 2 ** 20).toFixed(1)} MiB`
+      : `${n} bytes`;
+
+/**
+ * Inflates one miCOMPRESSED element without trusting it: a prefix is inflated first to read the
+ * inner element's tag (its byte count) and, for a numeric array, its class and dimensions; the
+ * whole is then inflated with zlib's output bound set to what the tag declares plus a small margin
+ * (never above MAX_INFLATED_BYTES), so a small file that inflates to gigabytes is stopped as soon
+ * as its output passes that bound, before the memory is taken.
+ */
+function inflateBounded(file: string, data: Buffer, le: boolean, index: number): Buffer {
+  const corrupt = (err: unknown): InputFileError =>
+    new InputFileError(
+      file,
+      `truncated or corrupt compressed variable ${index} (${(err as Error).message})`,
+      'truncated',
+    );
+  let head: Buffer;
+  try {
+    head = inflateSync(data.subarray(0, 1024), { finishFlush: zlibConstants.Z_SYNC_FLUSH });
+  } catch (err) {
+    throw corrupt(err);
+  }
+  if (head.length < 8) throw corrupt(new Error('no element inside'));
+  const type = le ? head.readUInt32LE(0) : head.readUInt32BE(0);
+  const declared = 8 + (le ? head.readUInt32LE(4) : head.readUInt32BE(4));
+  if (declared > MAX_INFLATED_BYTES) {
+    throw new InputFileError(
+      file,
+      `compressed variable ${index} declares ${bytesText(declared)} uncompressed, over Loopwise's limit of ${bytesText(MAX_INFLATED_BYTES)}`,
+      'mat-too-large',
+    );
+  }
+  if (type === MI_MATRIX) {
+    // A numeric array's values cannot take more than 8 bytes each (twice that when complex).
+    try {
+      const body = head.subarray(8);
+      const flags = readElement(file, body, 0, le, '');
+      const flagWord = le ? flags.data.readUInt32LE(0) : flags.data.readUInt32BE(0);
+      const dimsEl = readElement(file, body, flags.next, le, '');
+      const dims = intsOf(dimsEl, le);
+      const cls = flagWord & 0xff;
+      if (NUMERIC_CLASSES.has(cls) && dims.length >= 2 && dims.every((x) => x >= 0)) {
+        const count = dims.reduce((a, b) => a * b, 1);
+        const most = 8 + 1024 + count * 8 * ((flagWord & 0x0800) !== 0 ? 2 : 1);
+        if (declared > most) {
+          throw new InputFileError(
+            file,
+            `compressed variable ${index} declares ${bytesText(declared)} uncompressed, but its dimensions (${dims.join('×')} ${CLASS_NAMES[cls]}) need at most ${bytesText(most)}: corrupt or a decompression bomb`,
+            'mat-inflate-bound',
+          );
+        }
+      }
+    } catch (err) {
+      if (err instanceof InputFileError && err.code === 'mat-inflate-bound') throw err;
+      // The prefix did not reach the dimensions: the byte count alone bounds the output.
+    }
+  }
+  const bound = Math.min(MAX_INFLATED_BYTES, declared + INFLATE_MARGIN);
+  try {
+    return inflateSync(data, { maxOutputLength: bound });
+  } catch (err) {
+    if ((err as NodeJS.ErrnoException).code === 'ERR_BUFFER_TOO_LARGE' || err instanceof RangeError) {
+      throw new InputFileError(
+        file,
+        `compressed variable ${index} inflates to more than the ${bytesText(declared)} its header declares; stopped at ${bytesText(bound)} (corrupt, or a decompression bomb)`,
+        'mat-inflate-bound',
+      );
+    }
+    throw corrupt(err);
+  }
 }
 
 /** The variables of a level-5 MAT-file, in file order. */
@@ -182,16 +273,7 @@ export async function readMatVariables(file: string): Promise<MatVariable[]> {
     p = e.next;
     let body: Buffer;
     if (e.type === MI_COMPRESSED) {
-      let inflated: Buffer;
-      try {
-        inflated = inflateSync(e.data);
-      } catch (err) {
-        throw new InputFileError(
-          file,
-          `truncated or corrupt compressed variable ${vars.length + 1} (${(err as Error).message})`,
-          'truncated',
-        );
-      }
+      const inflated = inflateBounded(file, e.data, le, vars.length + 1);
       const inner = readElement(file, inflated, 0, le, `compressed variable ${vars.length + 1}`);
       if (inner.type !== MI_MATRIX) continue;
       body = inner.data;
@@ -238,7 +320,7 @@ export function pickVariable(file: string, vars: MatVariable[], name?: string): 
     );
   throw new InputFileError(
     file,
-    `holds several numeric variables: ${list}; pick one (--variable NAME)`,
+    `holds several numeric variables: ${list}; pick one: ${numeric.map((v) => `--variable ${v.name}`).join(' or ')}`,
     'mat-variable-ambiguous',
   );
 }

@@ -8,6 +8,7 @@ import { open } from 'node:fs/promises';
 import type { FileHandle } from 'node:fs/promises';
 import type { NdArray } from './array.ts';
 import { InputFileError, fsError } from './errors.ts';
+import { excerpt } from './text.ts';
 
 const MAGIC = [0x93, 0x4e, 0x55, 0x4d, 0x50, 0x59]; // \x93NUMPY
 
@@ -46,7 +47,7 @@ export function parseNpyHeader(file: string, head: Buffer): NpyHeader {
   if (!descrMatch) {
     throw new InputFileError(
       file,
-      `unsupported .npy data type (a structured dtype?): ${dict.trim().slice(0, 80)}`,
+      `unsupported .npy data type (a structured dtype?): ${excerpt(dict.trim(), 60)}`,
       'unsupported-dtype',
     );
   }
@@ -55,7 +56,7 @@ export function parseNpyHeader(file: string, head: Buffer): NpyHeader {
   if (!m) {
     throw new InputFileError(
       file,
-      `unsupported .npy data type '${descr}' (real numbers only: float, int, uint, bool)`,
+      `unsupported .npy data type '${excerpt(descr)}' (real numbers only: float, int, uint, bool)`,
       'unsupported-dtype',
     );
   }
@@ -63,7 +64,7 @@ export function parseNpyHeader(file: string, head: Buffer): NpyHeader {
   const itemSize = Number(m[3]);
   const okSize = kind === 'f' ? [2, 4, 8] : kind === 'b' ? [1] : [1, 2, 4, 8];
   if (!okSize.includes(itemSize))
-    throw new InputFileError(file, `unsupported .npy data type '${descr}'`, 'unsupported-dtype');
+    throw new InputFileError(file, `unsupported .npy data type '${excerpt(descr)}'`, 'unsupported-dtype');
   const fortranMatch = /['"]fortran_order['"]\s*:\s*(True|False)/.exec(dict);
   const shapeMatch = /['"]shape['"]\s*:\s*\(([^)]*)\)/.exec(dict);
   if (!fortranMatch || !shapeMatch)
@@ -72,9 +73,10 @@ export function parseNpyHeader(file: string, head: Buffer): NpyHeader {
     .split(',')
     .map((s) => s.trim())
     .filter((s) => s.length > 0)
-    .map(Number);
+    // Python 2 wrote long integers with an L suffix: (3L, 3L).
+    .map((s) => Number(s.replace(/^(\d+)L$/, '$1')));
   if (shape.some((d) => !Number.isInteger(d) || d < 0))
-    throw new InputFileError(file, `bad .npy shape (${shapeMatch[1]})`, 'bad-format');
+    throw new InputFileError(file, `bad .npy shape (${excerpt(shapeMatch[1], 40)})`, 'bad-format');
   return {
     version: [major, minor],
     littleEndian: m[1] !== '>',
@@ -84,6 +86,12 @@ export function parseNpyHeader(file: string, head: Buffer): NpyHeader {
     shape,
     dataOffset: start + headerLen,
   };
+}
+
+/** numpy's name of the header's type: float64, int8, uint16, bool, ... */
+export function dtypeName(h: Pick<NpyHeader, 'kind' | 'itemSize'>): string {
+  if (h.kind === 'b') return 'bool';
+  return `${h.kind === 'f' ? 'float' : h.kind === 'i' ? 'int' : 'uint'}${h.itemSize * 8}`;
 }
 
 /** IEEE half precision to a double (float16 has no DataView getter in Node 20). */
@@ -190,6 +198,15 @@ export async function readNpy(file: string, stackIndex?: number): Promise<NdArra
         'truncated',
       );
     }
+    // numpy writes exactly the array after the header; more bytes mean the header's shape is wrong.
+    if (have > need) {
+      throw new InputFileError(
+        file,
+        `holds ${have} bytes of data but the header's shape (${h.shape.join(', ')}) of ${dtypeName(h)} needs ${need}; the header does not describe the data`,
+        'bad-format',
+      );
+    }
+    const dtype = dtypeName(h);
     if (stackIndex !== undefined && h.shape.length === 3 && !h.fortran) {
       const [s, a, b] = h.shape;
       if (!Number.isInteger(stackIndex) || stackIndex < 0 || stackIndex >= s) {
@@ -200,10 +217,10 @@ export async function readNpy(file: string, stackIndex?: number): Promise<NdArra
         );
       }
       const bytes = await readAt(fh, h.dataOffset + stackIndex * a * b * h.itemSize, a * b * h.itemSize);
-      return { shape: [a, b], order: 'C', data: decodeItems(h, bytes, a * b) };
+      return { shape: [a, b], order: 'C', data: decodeItems(h, bytes, a * b), dtype };
     }
     const bytes = await readAt(fh, h.dataOffset, need);
-    return { shape: h.shape, order: h.fortran ? 'F' : 'C', data: decodeItems(h, bytes, count) };
+    return { shape: h.shape, order: h.fortran ? 'F' : 'C', data: decodeItems(h, bytes, count), dtype };
   } finally {
     await fh?.close();
   }

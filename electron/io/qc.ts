@@ -34,9 +34,16 @@ function finding(severity: Severity, code: string, message: string, where?: [num
   return where ? { severity, code, message, where } : { severity, code, message };
 }
 
+/** What the reader noticed (e.g. text that was not UTF-8), as warnings. */
+function readerNotes(m: Matrix2D): Finding[] {
+  return (m.notes ?? []).map((x) => finding('warning', x.code, x.message));
+}
+
+const INTEGER_DTYPE = /^(u?int\d+|bool|logical)$/;
+
 export function checkSquare(m: Matrix2D, o: CheckOptions): CheckResult {
   const { rows: n, cols, values } = m;
-  const out: Finding[] = [];
+  const out: Finding[] = readerNotes(m);
   if (n !== cols) {
     out.push(
       finding(
@@ -149,9 +156,30 @@ export function checkSquare(m: Matrix2D, o: CheckOptions): CheckResult {
         }
       }
     }
+    // Integers are no correlations: an int8/uint16/bool array, or a text file of whole numbers
+    // beyond ±1, is a label (atlas) image, counts or a binary graph.
+    let integral = true;
+    for (let i = 0; i < n && integral; i++) {
+      if (!live(i)) continue;
+      for (let j = 0; j < n && integral; j++)
+        if (j !== i && live(j) && Number.isFinite(v(i, j)) && !Number.isInteger(v(i, j))) integral = false;
+    }
+    const intType = m.dtype !== undefined && INTEGER_DTYPE.test(m.dtype);
     // atanh(1) = ∞, and atanh of 0.995 is already 3: a Fisher-z matrix has an infinite or large diagonal.
     const diagBig = diag.length > 0 && diag.every((d) => !Number.isFinite(d) || Math.abs(d) > 3);
-    if (outside > 0 && diagBig) {
+    const diagZ =
+      diag.length > 0 &&
+      diag.every((d) => d === Infinity || d === -Infinity || (Number.isFinite(d) && Math.abs(d) > 3));
+    if (intType || (integral && outside > 0)) {
+      out.push(
+        finding(
+          'error',
+          'integer-values',
+          `${intType ? `stores ${m.dtype} integers` : 'holds only whole numbers'}${outside > 0 ? ` (largest |v| = ${fmt(worst)})` : ''}, not correlations: probably a label (atlas) image or counts. Streamline or edge counts and binary graphs are weights (--input weight); a label image is not a connectivity matrix: give the matrix computed from it`,
+          outsideAt ?? [0, n > 1 ? 1 : 0],
+        ),
+      );
+    } else if (outside > 0 && diagBig) {
       out.push(
         finding(
           'error',
@@ -160,7 +188,32 @@ export function checkSquare(m: Matrix2D, o: CheckOptions): CheckResult {
           outsideAt!,
         ),
       );
+    } else if (outside === 0 && diagZ) {
+      const i = [...Array(n).keys()].find(live)!;
+      out.push(
+        finding(
+          'error',
+          'fisher-z',
+          `looks like Fisher z (diagonal ${fmt(diag[0])}, as atanh(1) = ∞, while every other value lies in [−1, 1]): give correlations (tanh of these values), or fix the diagonal to 1 if they already are correlations`,
+          [i, i],
+        ),
+      );
     } else {
+      // Whole numbers within ±1 (−1, 0, 1 only): a binarised graph rather than correlations.
+      let nonzero = 0;
+      for (let i = 0; i < n && integral; i++)
+        for (let j = 0; j < n; j++)
+          if (j !== i && live(i) && live(j) && Number.isFinite(v(i, j)) && v(i, j) !== 0) nonzero++;
+      if (integral && outside === 0 && nonzero > 0 && kept >= 3) {
+        out.push(
+          finding(
+            'warning',
+            'integer-values',
+            'holds only the whole numbers −1, 0 and 1 off the diagonal: a binarised graph rather than correlations? A binary graph is a weight matrix (--input weight)',
+            [0, 1],
+          ),
+        );
+      }
       if (outside > 0) {
         out.push(
           finding(
@@ -180,7 +233,7 @@ export function checkSquare(m: Matrix2D, o: CheckOptions): CheckResult {
             'warning',
             'diagonal-not-one',
             allZero
-              ? 'the diagonal is 0, not 1 (the analysis ignores the diagonal)'
+              ? 'the diagonal is 0, not 1 (the analysis ignores the diagonal); if these are Fisher z values (atanh r with the diagonal set to 0) rather than correlations, give correlations (tanh of the values)'
               : `the diagonal differs from 1 at ${off.length} regions (first: ${o.name(i)} = ${fmt(v(i, i))}; the analysis ignores the diagonal)`,
             [i, i],
           ),
@@ -256,7 +309,7 @@ export function checkSquare(m: Matrix2D, o: CheckOptions): CheckResult {
 /** Checks T × N region time series before they are correlated. */
 export function checkTimeSeries(m: Matrix2D, o: CheckOptions): CheckResult {
   const { rows: t, cols: n, values } = m;
-  const out: Finding[] = [];
+  const out: Finding[] = readerNotes(m);
   if (t < 3) {
     out.push(finding('error', 'too-few-timepoints', `only ${t} time points (rows); at least 3 are needed`));
     return { n, findings: out, dead: [] };

@@ -55,6 +55,13 @@ function wrap(file: string, format: MatrixFormat, variable: string | null, arr: 
   // MATLAB has no 1-D arrays and drops trailing singleton dimensions; NumPy keeps them.
   const shape =
     arr.shape.length > 2 && arr.shape[arr.shape.length - 1] === 1 ? arr.shape.slice(0, -1) : arr.shape;
+  if (shape.length >= 2 && shape.length <= 3 && shape.some((d) => d === 0)) {
+    throw new InputFileError(
+      file,
+      `${variable ? `variable '${variable}' ` : ''}holds an empty array of shape (${shape.join(', ')})`,
+      'empty-file',
+    );
+  }
   if (shape.length === 2) return { format, variable, kind: 'matrix', matrix: as2D(file, { ...arr, shape }) };
   if (shape.length === 3) {
     const axis = stackAxis(shape, format === 'mat' ? 'matlab' : 'numpy');

@@ -1,35 +1,128 @@
 /**
- * Small text tables of strings: the participants table (BIDS participants.tsv, or CSV) and the
- * node table. Read whole (they are small) through papaparse; .tsv is tab-separated as BIDS says,
- * other files get their separator detected.
+ * Small text tables of strings: the participants table (BIDS participants.tsv, or CSV), the node
+ * table and the sessions table. Read whole (they are small); .tsv is tab-separated as BIDS says,
+ * other files get their separator detected. Decoded as text.ts says (UTF-8, UTF-16 with a
+ * byte-order mark, else Windows-1252 with a warning). A row with more or fewer fields than the
+ * header is not used: its cells would land in the wrong columns.
  */
 import { readFile } from 'node:fs/promises';
 import { extname } from 'node:path';
-import Papa from 'papaparse';
 import type { ColumnInfo, CovariateValue, NodeInfo, QcFinding } from '../api.ts';
-import { detectDelimiter } from './delimited.ts';
+import { LineSplitter, RecordAssembler, detectDelimiter } from './delimited.ts';
 import { InputFileError, fsError } from './errors.ts';
+import { decodeText, excerpt, replacementNote } from './text.ts';
 
 export interface StringTable {
   header: string[];
   rows: string[][];
+  /** The line of the file each row starts on (1-based, as an editor shows it). */
+  lines?: number[];
+  /** Rows whose number of fields differs from the header's (left out, or kept blank). */
+  rejected?: Array<{ line: number; fields: number }>;
 }
 
-export async function readStringTable(file: string): Promise<StringTable> {
-  let text: string;
+/** Where a table's own problems go: the cohort's findings, under the table's path as shown. */
+export interface TableReport {
+  findings: QcFinding[];
+  rel: string;
+  /** Prefixes the finding codes: 'participants-ragged', 'nodes-ragged', 'sessions-ragged'. */
+  table: 'participants' | 'nodes' | 'sessions';
+  /**
+   * Rows stand for something by their place (the node table: row k is region k): a ragged row is
+   * kept there with every field empty, instead of being left out.
+   */
+  keepPlace?: boolean;
+}
+
+export async function readStringTable(file: string, report?: TableReport): Promise<StringTable> {
+  let buf: Buffer;
   try {
-    text = (await readFile(file, 'utf8')).replace(/^\uFEFF/, '');
+    buf = await readFile(file);
   } catch (e) {
     throw fsError(file, e);
   }
+  if (buf.length === 0) throw new InputFileError(file, 'empty table', 'empty-file');
+  const { text, note } = decodeText(file, buf);
   if (text.trim() === '') throw new InputFileError(file, 'empty table', 'empty-file');
-  const d = extname(file).toLowerCase() === '.tsv' ? '\t' : detectDelimiter(text);
-  const parsed = Papa.parse<string[]>(text, {
-    delimiter: d === 'whitespace' ? '\t' : d,
-    skipEmptyLines: 'greedy',
+  if (note && report) {
+    report.findings.push({
+      severity: 'warning',
+      code: 'text-encoding',
+      file: report.rel,
+      subject: null,
+      message: note,
+    });
+  }
+  const found = extname(file).toLowerCase() === '.tsv' ? '\t' : detectDelimiter(text);
+  const d = found === 'whitespace' ? '\t' : found;
+  const records: Array<{ cells: string[]; line: number }> = [];
+  // No comment lines in a table: a '#' may start a value.
+  const assembler = new RecordAssembler(file, d, (cells, line) => records.push({ cells, line }), false);
+  const splitter = new LineSplitter((line, no) => assembler.line(line, no));
+  splitter.feed(text);
+  splitter.end();
+  assembler.end();
+  if (records.length === 0) throw new InputFileError(file, 'empty table', 'empty-file');
+  if (assembler.replacement && report) {
+    report.findings.push({
+      severity: 'warning',
+      code: 'text-encoding',
+      file: report.rel,
+      subject: null,
+      message: replacementNote(assembler.replacement),
+    });
+  }
+  const [head, ...body] = records;
+  // Empty names at the end of the header come from separators at the ends of lines.
+  const header = head.cells.map((h) => h.trim());
+  while (header.length > 1 && header[header.length - 1] === '') header.pop();
+  // A name used twice would let the second column overwrite the first: the first one counts.
+  const seen = new Map<string, number>();
+  header.forEach((h, c) => {
+    if (h === '') return;
+    const first = seen.get(h);
+    if (first === undefined) {
+      seen.set(h, c);
+      return;
+    }
+    header[c] = '';
+    report?.findings.push({
+      severity: 'warning',
+      code: `${report.table}-duplicate-column`,
+      file: report.rel,
+      subject: null,
+      message: `column '${excerpt(h, 40)}' appears twice (columns ${first + 1} and ${c + 1}); the second is not used`,
+    });
   });
-  const [header, ...rows] = parsed.data;
-  return { header: header.map((h) => h.trim()), rows };
+  const idCol = header.findIndex((h) => h.toLowerCase() === 'participant_id');
+  const rows: string[][] = [];
+  const lines: number[] = [];
+  const rejected: NonNullable<StringTable['rejected']> = [];
+  for (const { cells, line } of body) {
+    if (cells.every((c) => c.trim() === '')) continue;
+    // Empty fields past the header's width (a separator at the end of the line) carry nothing.
+    let k = cells.length;
+    while (k > header.length && cells[k - 1].trim() === '') k--;
+    if (k !== header.length) {
+      rejected.push({ line, fields: k });
+      report?.findings.push({
+        severity: 'error',
+        code: `${report.table}-ragged`,
+        file: report.rel,
+        subject: idCol >= 0 && cells[idCol] !== undefined ? excerpt(cells[idCol].trim(), 40) : null,
+        message: `line ${line} has ${k} fields but the header has ${header.length}${k > header.length ? ' (an extra separator?)' : ''}; ${report.keepPlace ? 'its fields are not used' : 'the row is not used'}`,
+        where: [line - 1, Math.min(k, header.length)],
+      });
+      if (report?.keepPlace) {
+        rows.push(header.map(() => ''));
+        lines.push(line);
+      }
+      continue;
+    }
+    rows.push(k === cells.length ? cells : cells.slice(0, k));
+    lines.push(line);
+  }
+  return { header, rows, lines, rejected };
 }
 
 /** BIDS writes n/a for a missing value; an empty cell and NaN count as missing too. */
@@ -68,6 +161,34 @@ export function covariateColumns(
     const detected =
       present.length > 0 && present.every((s) => asNumber(s) !== null) ? 'numeric' : 'categorical';
     const kind = kinds[name] ?? detected;
+    if (kinds[name] === undefined && detected === 'categorical') {
+      // A column of numbers with a few words among them (a typo) or with decimal commas would turn
+      // into a categorical covariate with a level per value: say so.
+      const words = cells.map((s, r) => ({ s, r })).filter(({ s }) => !isMissing(s) && asNumber(s) === null);
+      const commas = words.filter(({ s }) => /^\s*[+-]?\d+,\d+\s*$/.test(s));
+      const numbers = present.length - words.length;
+      const at = (x: { s: string; r: number }): string =>
+        `line ${table.lines?.[x.r] ?? x.r + 2}: '${excerpt(x.s)}'`;
+      if (commas.length > 0 && commas.length === words.length) {
+        findings.push({
+          severity: 'warning',
+          code: 'covariate-decimal-comma',
+          file,
+          subject: null,
+          message: `column '${name}' holds numbers with a decimal comma (${at(commas[0])}); read as categorical with ${new Set(present.map((x) => x.trim())).size} levels. Write decimal points in the file`,
+          where: [commas[0].r + 1, c],
+        });
+      } else if (numbers > 0 && words.length <= numbers / 4) {
+        findings.push({
+          severity: 'warning',
+          code: 'covariate-mostly-numeric',
+          file,
+          subject: null,
+          message: `column '${name}' is read as categorical because ${words.length} of ${present.length} values ${words.length === 1 ? 'is' : 'are'} not a number (${words.slice(0, 3).map(at).join(', ')}); fix ${words.length === 1 ? 'it' : 'them'}, or read the column as numbers (--numeric ${name}) to take ${words.length === 1 ? 'it' : 'them'} as missing`,
+          where: [words[0].r + 1, c],
+        });
+      }
+    }
     let missing = 0;
     const levels = new Set<string>();
     cells.forEach((s, r) => {
@@ -84,7 +205,7 @@ export function covariateColumns(
             code: 'covariate-not-numeric',
             file,
             subject: table.rows[r][0]?.trim() ?? null,
-            message: `column '${name}', row ${r + 2}: '${s}' is not a number; treated as missing`,
+            message: `column '${name}', line ${table.lines?.[r] ?? r + 2}: '${excerpt(s)}' is not a number; treated as missing`,
             where: [r + 1, c],
           });
           values[r][name] = null;
@@ -117,7 +238,7 @@ const COORD = {
 
 /** The node table: one row per region with a label, an optional network and optional x, y, z. */
 export async function readNodeTable(file: string, findings: QcFinding[], rel: string): Promise<NodeInfo[]> {
-  const t = await readStringTable(file);
+  const t = await readStringTable(file, { findings, rel, table: 'nodes', keepPlace: true });
   const find = (re: RegExp): number => t.header.findIndex((h) => re.test(h));
   let label = find(LABEL);
   if (label < 0) {
@@ -144,7 +265,7 @@ export async function readNodeTable(file: string, findings: QcFinding[], rel: st
         code: 'nodes-bad-coordinate',
         file: rel,
         subject: null,
-        message: `row ${r + 2}: ${axis} coordinate '${row[c]}' is not a number`,
+        message: `line ${t.lines?.[r] ?? r + 2}: ${axis} coordinate '${excerpt(row[c])}' is not a number`,
         where: [r + 1, c],
       });
     }
@@ -167,7 +288,7 @@ export async function readNodeTable(file: string, findings: QcFinding[], rel: st
         code: 'nodes-duplicate-label',
         file: rel,
         subject: null,
-        message: `label '${n.label}' is on rows ${before + 2} and ${n.index + 2}`,
+        message: `label '${excerpt(n.label, 40)}' is on lines ${t.lines?.[before] ?? before + 2} and ${t.lines?.[n.index] ?? n.index + 2}`,
       });
     } else seen.set(n.label, n.index);
   }

@@ -25,6 +25,8 @@ export interface SourceOptions {
   input?: InputKind;
   /** Regions the run will drop: the cohort check leaves them out. */
   dropRegions?: number[];
+  /** Folders besides the cohort's own that its files may resolve into (OpenCohortOptions.allowedRoots). */
+  allowedRoots?: string[];
 }
 
 export async function openCohortSource(
@@ -34,6 +36,7 @@ export async function openCohortSource(
   const report = await openCohort(req, {
     ...(opts.input !== undefined ? { input: opts.input } : {}),
     ...(opts.dropRegions !== undefined ? { dropRegions: opts.dropRegions } : {}),
+    ...(opts.allowedRoots !== undefined ? { allowedRoots: opts.allowedRoots } : {}),
   });
   return { report, load: (entry) => loadSubjectMatrix(entry), loadsInWorker: true };
 }

@@ -119,6 +119,8 @@ export async function runFiltrationStage(opts: FiltrationStageOptions): Promise<
     const entry = report.subjects[index];
     const base: SubjectRecord = {
       id: entry.id,
+      participant: entry.participant,
+      session: entry.session,
       index,
       status: 'failed',
       reason: null,

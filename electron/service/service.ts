@@ -74,6 +74,8 @@ export interface ServiceOptions {
   hooks?: RunHooks | (() => RunHooks);
   /** Clock for provenance.createdAt (tests). */
   now?: () => Date;
+  /** Folders besides a cohort's own that its files may resolve into (a door's roots; read at each opening). */
+  allowedRoots?: () => string[];
 }
 
 /** What a shard leaves for the merge. */
@@ -163,7 +165,11 @@ export class LoopwiseService implements LoopwiseApi {
   }
 
   private openSource(req: OpenCohortRequest, opts: SourceOptions = {}): Promise<CohortSource> {
-    return (this.options.openSource ?? openCohortSource)(req, opts);
+    const roots = this.options.allowedRoots?.();
+    return (this.options.openSource ?? openCohortSource)(
+      req,
+      roots ? { ...opts, allowedRoots: roots } : opts,
+    );
   }
 
   private emit(e: ProgressEvent): void {

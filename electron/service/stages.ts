@@ -12,6 +12,8 @@
  *   group-intervals.tsv group, dimension, birth, death, nodes
  *   group-nodes.tsv     group, node, label, network, measure, value
  *   stats.tsv, excluded-features.tsv, diagram-tests.tsv, embedding.tsv   (with --group, --effect or --model)
+ * Where the cohort has sessions, every per-scan table has a `session` column right after
+ * participant_id (which then holds the participant, shared by its scans).
  */
 import type { CohortReport, CurveBand, NodeInfo, StatsSettings, SubjectEntry, Table } from '../api.ts';
 import {
@@ -95,6 +97,13 @@ export function cohortStages(): RunHooks {
     const v = entryOf(ctx, id)?.covariates[col];
     return v === null || v === undefined ? null : String(v);
   };
+  /** participant_id, and session where the cohort has sessions: the first cells of a scan's rows. */
+  const scanCells = (ctx: StageContext, id: string): Array<string | null> => {
+    const e = entryOf(ctx, id);
+    return ctx.report.sessions ? [e?.participant ?? id, e?.session ?? null] : [e?.participant ?? id];
+  };
+  const scanColumns = (ctx: StageContext): string[] =>
+    ctx.report.sessions ? ['participant_id', 'session'] : ['participant_id'];
 
   return {
     async groupFiltrations(ctx) {
@@ -179,14 +188,14 @@ export function cohortStages(): RunHooks {
       curveRows = [];
       diagramsBySubject = [];
       const curvesSink = await ctx.openTable('curves', [
-        'participant_id',
+        ...scanColumns(ctx),
         'curve',
         'dimension',
         'grid_value',
         'value',
       ]);
       const nodesSink = await ctx.openTable('nodes', [
-        'participant_id',
+        ...scanColumns(ctx),
         'node',
         'label',
         'network',
@@ -195,13 +204,13 @@ export function cohortStages(): RunHooks {
       ]);
       const withNetworks = ctx.report.nodes?.some((x) => x.network !== null) ?? false;
       const networksSink = withNetworks
-        ? await ctx.openTable('networks', ['participant_id', 'network', 'measure', 'mean', 'nodes'])
+        ? await ctx.openTable('networks', [...scanColumns(ctx), 'network', 'measure', 'mean', 'nodes'])
         : null;
       const sinks = [curvesSink, nodesSink, ...(networksSink ? [networksSink] : [])];
       // The renderer gets the long node table in its results up to this size (the file has all rows).
       const RESULT_NODE_ROWS = 1_000_000;
       const nodesForResults: Table = {
-        columns: ['participant_id', 'node', 'label', 'network', 'measure', 'value'],
+        columns: [...scanColumns(ctx), 'node', 'label', 'network', 'measure', 'value'],
         rows: [],
       };
       let done = 0;
@@ -224,13 +233,15 @@ export function cohortStages(): RunHooks {
           const kept = keptRegions(nRead, settings.dropRegions);
           const scores = maskDropped(subjectNodeScores(r, settings), kept, nRead);
           nodeScores.push({ subject: rec.id, scores });
-          for (const row of nodeScoreTable([{ subject: rec.id, scores }], ctx.report.nodes).rows) {
+          const cells = scanCells(ctx, rec.id);
+          for (const scored of nodeScoreTable([{ subject: rec.id, scores }], ctx.report.nodes).rows) {
+            const row = [...cells, ...scored.slice(1)];
             await nodesSink.row(row);
             if (nodesForResults.rows.length < RESULT_NODE_ROWS) nodesForResults.rows.push(row);
           }
           if (networksSink) {
             for (const row of networkScoreTable([{ subject: rec.id, scores }], ctx.report.nodes).rows) {
-              await networksSink.row(row);
+              await networksSink.row([...cells, ...row.slice(1)]);
             }
           }
           const curves = subjectCurves(r, gridValues, settings, distances ?? undefined);
@@ -238,7 +249,7 @@ export function cohortStages(): RunHooks {
           for (const [name, values] of Object.entries(curves)) {
             const dim = curveDimension(name);
             for (let i = 0; i < values.length; i++)
-              await curvesSink.row([rec.id, name, dim, gridValues[i], values[i]]);
+              await curvesSink.row([...cells, name, dim, gridValues[i], values[i]]);
           }
           done++;
         }
@@ -452,15 +463,9 @@ export function cohortStages(): RunHooks {
         await ctx.writeTable('diagram-tests', diagramTests);
         if (embedding) {
           // participant_id, then session where the cohort has sessions (the scan rows' shared layout).
-          const withSessions = (ctx.report.sessions?.length ?? 0) > 0;
-          const who = (id: string): Array<string | null> => {
-            const e = entryOf(ctx, id);
-            const participant = e?.participant ?? id;
-            return withSessions ? [participant, e?.session ?? null] : [participant];
-          };
           await ctx.writeTable('embedding', {
-            columns: ['participant_id', ...(withSessions ? ['session'] : []), 'group', 'method', 'x', 'y'],
-            rows: embedding.map((e) => [...who(e.subject), e.group, e.method, e.x, e.y]),
+            columns: [...scanColumns(ctx), 'group', 'method', 'x', 'y'],
+            rows: embedding.map((e) => [...scanCells(ctx, e.subject), e.group, e.method, e.x, e.y]),
           });
         }
         if (warnings.length > 0) await ctx.writeJson('stats-warnings.json', warnings);
@@ -618,15 +623,19 @@ function curveDimension(name: string): number | null {
   return m ? Number(m[1]) : null;
 }
 
-/** participant_id, then the participants table's columns, then the features. */
+/** participant_id (and session where the cohort has sessions), then the covariate columns, then the features. */
 function withParticipants(features: Table, report: CohortReport): Table {
-  const cols = report.columns.map((c) => c.name).filter((c) => c !== 'participant_id');
+  const first = report.sessions ? ['participant_id', 'session'] : ['participant_id'];
+  const cols = report.columns.map((c) => c.name).filter((c) => !first.includes(c));
   const byId = new Map(report.subjects.map((s) => [s.id, s]));
   return {
-    columns: ['participant_id', ...cols, ...features.columns.slice(1)],
+    columns: [...first, ...cols, ...features.columns.slice(1)],
     rows: features.rows.map((row) => {
       const s = byId.get(String(row[0]));
-      return [row[0], ...cols.map((c) => s?.covariates[c] ?? null), ...row.slice(1)];
+      const scan = report.sessions
+        ? [s?.participant ?? row[0], s?.session ?? null]
+        : [s?.participant ?? row[0]];
+      return [...scan, ...cols.map((c) => s?.covariates[c] ?? null), ...row.slice(1)];
     }),
   };
 }

@@ -19,6 +19,9 @@ export type TableFormat = 'tsv' | 'csv';
 /** What became of one subject. Deterministic: no timings, no reused/computed distinction. */
 export interface SubjectRecord {
   id: string;
+  /** The participant and session of the scan (SubjectEntry); absent in records written before sessions existed. */
+  participant?: string;
+  session?: string | null;
   /** Position in the cohort's subject order. */
   index: number;
   status: 'analysed' | 'failed' | 'excluded';
@@ -184,16 +187,21 @@ export async function writeRunTables(
 ): Promise<{ files: string[]; provenance: Provenance }> {
   const names = tableNames(format);
   const maxDim = run.settings.maxDim;
+  // participant_id, and session where the cohort has sessions: the first cells of a scan's rows.
+  const withSessions = run.records.some((r) => (r.session ?? null) !== null);
+  const first = withSessions ? ['participant_id', 'session'] : ['participant_id'];
+  const scan = (r: { id: string; participant?: string; session?: string | null }): Array<string | null> =>
+    withSessions ? [r.participant ?? r.id, r.session ?? null] : [r.participant ?? r.id];
 
   const intervals = openAtomicWriter(join(dir, names.intervals));
   const subjects = openAtomicWriter(join(dir, names.subjects));
   try {
-    await intervals.write(tableLine(['participant_id', 'dimension', 'birth', 'death', 'nodes'], format));
+    await intervals.write(tableLine([...first, 'dimension', 'birth', 'death', 'nodes'], format));
     const dimCols = Array.from({ length: maxDim + 1 }, (_, d) => `h${d}_intervals`);
     await subjects.write(
       tableLine(
         [
-          'participant_id',
+          ...first,
           'status',
           'reason',
           'regions',
@@ -206,6 +214,7 @@ export async function writeRunTables(
       ),
     );
     for (const r of run.records) {
+      const cells = scan(r);
       let entry: CachedFiltration | null = null;
       if (r.status === 'analysed') {
         entry = r.key ? await cache.get(r.key) : null;
@@ -215,7 +224,7 @@ export async function writeRunTables(
           let text = '';
           entry.diagrams[d].forEach(([birth, death], k) => {
             const nodes = reps ? reps[k].nodes.join(' ') : null;
-            text += tableLine([r.id, d, birth, death ?? Infinity, nodes], format);
+            text += tableLine([...cells, d, birth, death ?? Infinity, nodes], format);
           });
           if (text) await intervals.write(text);
         }
@@ -223,7 +232,7 @@ export async function writeRunTables(
       await subjects.write(
         tableLine(
           [
-            r.id,
+            ...cells,
             r.status,
             r.reason,
             entry ? entry.n : null,
@@ -242,7 +251,7 @@ export async function writeRunTables(
       await subjects.write(
         tableLine(
           [
-            u.id,
+            ...scan(u),
             'excluded',
             u.reason,
             null,

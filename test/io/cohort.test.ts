@@ -139,18 +139,27 @@ describe('a BIDS-like cohort', () => {
 
   it('reads covariates with kinds and missing values, and the node table', async () => {
     const report = await openCohort({ dir });
-    expect(report.columns).toEqual([
+    // participant_id is always a column the design may name (categorical, one level per participant).
+    expect(report.columns[0]).toMatchObject({ name: 'participant_id', kind: 'categorical', missing: 0 });
+    expect(report.columns.slice(1)).toEqual([
       { name: 'age', kind: 'numeric', missing: 1 },
       { name: 'group', kind: 'categorical', levels: ['control', 'patient'], missing: 0 },
       { name: 'site', kind: 'categorical', levels: ['3', 'A', 'B'], missing: 0 },
       { name: 'score', kind: 'numeric', missing: 1 },
     ]);
-    expect(report.subjects[2].covariates).toEqual({ age: null, group: 'patient', site: 'A', score: 2.25 });
+    expect(report.subjects[2].covariates).toEqual({
+      participant_id: report.subjects[2].participant,
+      age: null,
+      group: 'patient',
+      site: 'A',
+      score: 2.25,
+    });
+    expect(report.sessions).toBeNull();
     expect(report.nodes).toHaveLength(6);
     expect(report.nodes![0]).toEqual({ index: 0, label: 'L_V1', network: 'visual', x: -30, y: 0, z: 0 });
     expect(report.nodes![5].z).toBeNull();
     const forced = await openCohort({ dir, columnKinds: { age: 'categorical' } });
-    expect(forced.columns[0]).toEqual({
+    expect(forced.columns[1]).toEqual({
       name: 'age',
       kind: 'categorical',
       levels: ['23', '31', '45'],
@@ -164,7 +173,14 @@ describe('a BIDS-like cohort', () => {
     const text = JSON.stringify(report);
     expect(text.length).toBeLessThan(3000);
     for (const s of report.subjects)
-      expect(Object.keys(s).sort()).toEqual(['covariates', 'id', 'source', 'usable']);
+      expect(Object.keys(s).sort()).toEqual([
+        'covariates',
+        'id',
+        'participant',
+        'session',
+        'source',
+        'usable',
+      ]);
   });
 });
 
@@ -202,7 +218,7 @@ describe('time series per subject, files named in a column', () => {
     const report = await openCohort({ dir, timeSeries: true });
     expect(report.findings).toEqual([]);
     expect(report.n).toBe(5);
-    expect(report.columns.map((c) => c.name)).toEqual(['age']);
+    expect(report.columns.map((c) => c.name)).toEqual(['participant_id', 'age']);
     for (const s of report.subjects) {
       expect(s.source.timeSeries).toBe(true);
       const m = await loadSubjectMatrix(s);
@@ -258,7 +274,9 @@ describe('other layouts and doors', () => {
       join(FIX, 'readers', 'expected.json'),
     );
     const report = await openCohort({ dir: d, columnKinds: { group: 'categorical', nope: 'numeric' } });
-    expect(report.columns).toEqual([{ name: 'group', kind: 'categorical', levels: ['1', '2'], missing: 0 }]);
+    expect(report.columns.slice(1)).toEqual([
+      { name: 'group', kind: 'categorical', levels: ['1', '2'], missing: 0 },
+    ]);
     expect(report.findings.map((f) => f.code)).toEqual(['covariate-unknown']);
     for (const [k, s] of report.subjects.entries()) {
       expect(s.source).toMatchObject({ stackIndex: k, variable: 'S' });

@@ -5,7 +5,16 @@ import { fileURLToPath } from 'node:url';
 import { afterAll, describe, expect, it } from 'vitest';
 import { MatrixError, toDistances } from '../../electron/engine/transform.ts';
 import type { SquareMatrix } from '../../electron/engine/types.ts';
-import { BASE, MESSY, PLANTED, PLANTED_GROUP, STUDY, writeSampleData } from '../../sample-data/generate.ts';
+import {
+  BASE,
+  MESSY,
+  PLANTED,
+  PLANTED_GROUP,
+  SESSIONS,
+  STUDY,
+  scanPath,
+  writeSampleData,
+} from '../../sample-data/generate.ts';
 import { jacobiEigenvalues } from '../engine/generator/jacobi.ts';
 import { h1Participation, meanOver } from '../engine/generator/participation.ts';
 
@@ -13,9 +22,22 @@ const SAMPLE = fileURLToPath(new URL('../../sample-data/', import.meta.url));
 const reference = JSON.parse(
   readFileSync(new URL('./goldens/rhythm-study-reference.json', import.meta.url), 'utf8'),
 ) as {
+  mixed: Record<
+    'planted_target' | 'within',
+    {
+      interaction: number;
+      interaction_p: number;
+      group_at_pre: number;
+      group_at_pre_p: number;
+      participant_variance: number;
+      residual_variance: number;
+    }
+  >;
   subjects: Array<{
     id: string;
+    session: string;
     group: string;
+    fd_mean: number;
     n: number;
     min_eigenvalue: number;
     max_asymmetry: number;
@@ -56,9 +78,19 @@ function filesUnder(dir: string, prefix = ''): string[] {
 const study = join(SAMPLE, STUDY);
 const people = readTable(join(study, 'participants.tsv'));
 const nodes = readTable(join(study, 'nodes.tsv'));
-const matrices = people.map((p) => readMatrix(join(study, `${p.participant_id}_conn.tsv`)));
+/** Every scan: participant by participant, sessions in order (pre, post), as the golden lists them. */
+const scans = people.flatMap((p) =>
+  SESSIONS.map((session) => ({
+    id: p.participant_id,
+    group: p.group,
+    session,
+    matrix: readMatrix(join(study, scanPath(p.participant_id, session))),
+  })),
+);
+const matrices = scans.map((s) => s.matrix);
 const network = nodes.map((r) => r.network);
 const planted = PLANTED.map((p) => nodes.findIndex((r) => r.label === p.label));
+const mean = (a: number[]): number => a.reduce((x, y) => x + y, 0) / a.length;
 
 describe('regeneration', () => {
   const tmp = mkdtempSync(join(tmpdir(), 'loopwise-sample-'));
@@ -100,13 +132,27 @@ describe('regeneration', () => {
 });
 
 describe('the rhythm-study cohort', () => {
-  it('has 40 participants in two groups of 20, BIDS-style columns, and a 60-region node table in 6 networks', () => {
-    expect(Object.keys(people[0])).toEqual(['participant_id', 'group', 'age', 'sex', 'fd_mean']);
+  it('is a BIDS tree: 24 participants in two arms of 12, each scanned before and after, a 60-region node table in 6 networks', () => {
+    expect(Object.keys(people[0])).toEqual(['participant_id', 'group', 'age', 'sex']);
     expect(people.map((p) => p.participant_id)).toEqual(
-      Array.from({ length: 40 }, (_, i) => `sub-${String(i + 1).padStart(2, '0')}`),
+      Array.from({ length: 24 }, (_, i) => `sub-${String(i + 1).padStart(2, '0')}`),
     );
-    expect(people.filter((p) => p.group === 'training')).toHaveLength(20);
-    expect(people.filter((p) => p.group === 'waitlist')).toHaveLength(20);
+    expect(people.filter((p) => p.group === 'training')).toHaveLength(12);
+    expect(people.filter((p) => p.group === 'waitlist')).toHaveLength(12);
+    const files = filesUnder(study).sort();
+    expect(files).toHaveLength(3 + 24 * 3);
+    for (const p of people) {
+      const id = p.participant_id;
+      expect(files).toContain(`${id}/${id}_sessions.tsv`);
+      for (const ses of SESSIONS)
+        expect(files).toContain(`${id}/ses-${ses}/func/${id}_ses-${ses}_task-rest_desc-corr_relmat.tsv`);
+      const rows = readTable(join(study, id, `${id}_sessions.tsv`));
+      expect(rows.map((r) => r.session_id)).toEqual(['ses-pre', 'ses-post']);
+      for (const r of rows) expect(Number(r.fd_mean)).toBeGreaterThan(0.05);
+    }
+    expect(JSON.parse(readFileSync(join(study, 'dataset_description.json'), 'utf8')).BIDSVersion).toBe(
+      '1.9.0',
+    );
     expect(Object.keys(nodes[0])).toEqual(['label', 'network', 'x', 'y', 'z']);
     expect(nodes).toHaveLength(60);
     expect(new Set(network).size).toBe(6);
@@ -119,7 +165,9 @@ describe('the rhythm-study cohort', () => {
   });
 
   it('holds valid correlation matrices: symmetric, unit diagonal, PSD (Jacobi here; numpy eigvalsh in the golden)', () => {
-    expect(reference.subjects.map((s) => s.id)).toEqual(people.map((p) => p.participant_id));
+    expect(reference.subjects.map((s) => `${s.id}_ses-${s.session}`)).toEqual(
+      scans.map((s) => `${s.id}_ses-${s.session}`),
+    );
     matrices.forEach((m, k) => {
       const ref = reference.subjects[k];
       expect(m.n).toBe(60);
@@ -173,62 +221,106 @@ describe('the rhythm-study cohort', () => {
     expect(Math.abs(between - expectedBetween)).toBeLessThan(0.03);
   });
 
-  it('raises the planted nodes’ correlation with their target networks in the training group only', () => {
-    const byGroup = (g: string): number[] =>
-      reference.subjects.filter((s) => s.group === g).map((s) => s.planted_target);
-    const mean = (a: number[]): number => a.reduce((x, y) => x + y, 0) / a.length;
-    const diff = mean(byGroup(PLANTED_GROUP)) - mean(byGroup('waitlist'));
-    // Expected (w − c)√share = (0.5 − 0.18)·√0.3 ≈ 0.175 (numpy means of the committed matrices).
-    expect(diff).toBeGreaterThan(0.1);
-    expect(diff).toBeLessThan(0.25);
-    // And recomputed here from the files.
-    matrices.forEach((m, k) => {
-      let s = 0;
-      PLANTED.forEach((p, q) => {
-        let t = 0;
-        let c = 0;
-        network.forEach((net, j) => {
-          if (net === p.target) {
-            t += m.values[planted[q] * 60 + j];
-            c++;
-          }
-        });
-        s += t / c;
+  /** Mean r of the planted nodes with the networks they bridge to, recomputed from a scan's file. */
+  const plantedTarget = (m: SquareMatrix): number => {
+    let s = 0;
+    PLANTED.forEach((p, q) => {
+      let t = 0;
+      let c = 0;
+      network.forEach((net, j) => {
+        if (net === p.target) {
+          t += m.values[planted[q] * 60 + j];
+          c++;
+        }
       });
-      expect(s / PLANTED.length).toBeCloseTo(reference.subjects[k].planted_target, 10);
+      s += t / c;
     });
+    return s / PLANTED.length;
+  };
+  const cell = (values: number[], group: string, session: string): number =>
+    mean(values.filter((_, k) => scans[k].group === group && scans[k].session === session));
+
+  it('raises the planted nodes’ correlation with their target networks in the training arm after training only (group × session)', () => {
+    const values = matrices.map(plantedTarget);
+    values.forEach((v, k) => expect(v).toBeCloseTo(reference.subjects[k].planted_target, 10));
+    const change = (g: string): number => cell(values, g, 'post') - cell(values, g, 'pre');
+    const interaction = change(PLANTED_GROUP) - change('waitlist');
+    // Expected (w − c)√share = (0.5 − 0.18)·√0.35 ≈ 0.19.
+    expect(interaction).toBeGreaterThan(0.12);
+    expect(interaction).toBeLessThan(0.25);
+    // A balanced design: the mixed model's interaction is the difference of differences of the cell
+    // means (statsmodels 0.13.5 MixedLM, test/sample-data/make_sample_reference.py).
+    const mixed = reference.mixed.planted_target;
+    expect(interaction).toBeCloseTo(mixed.interaction, 6);
+    expect(mixed.interaction_p).toBeLessThan(1e-6);
+    // Before training the arms do not differ.
+    expect(Math.abs(cell(values, PLANTED_GROUP, 'pre') - cell(values, 'waitlist', 'pre'))).toBeLessThan(0.02);
+    expect(mixed.group_at_pre_p).toBeGreaterThan(0.05);
+    expect(Math.abs(change('waitlist'))).toBeLessThan(0.02);
   });
 
-  it('makes the planted nodes take part in more and longer H1 cycles in the training group, and lead the group difference', () => {
-    const count: Record<string, Float64Array> = {
-      training: new Float64Array(60),
-      waitlist: new Float64Array(60),
-    };
-    const persistence: Record<string, Float64Array> = {
-      training: new Float64Array(60),
-      waitlist: new Float64Array(60),
-    };
-    matrices.forEach((m, k) => {
-      const g = people[k].group;
-      const p = h1Participation(m);
-      for (let i = 0; i < 60; i++) {
-        count[g][i] += p.count[i] / 20;
-        persistence[g][i] += p.persistence[i] / 20;
-      }
+  it('makes scans of one participant alike: a subject random effect', () => {
+    // Intraclass correlation of the mean within-network r (statsmodels MixedLM variance components).
+    const { participant_variance: u, residual_variance: e } = reference.mixed.within;
+    expect(u / (u + e)).toBeGreaterThan(0.5);
+    // And recomputed here: pre and post values of the participants correlate (Pearson, common practice).
+    const within = matrices.map((m) => {
+      let s = 0;
+      let c = 0;
+      for (let i = 0; i < 60; i++)
+        for (let j = 0; j < 60; j++)
+          if (i !== j && network[i] === network[j]) {
+            s += m.values[i * 60 + j];
+            c++;
+          }
+      return s / c;
     });
-    expect(meanOver(count.training, planted)).toBeGreaterThan(meanOver(count.waitlist, planted));
-    expect(meanOver(persistence.training, planted)).toBeGreaterThan(
-      2 * meanOver(persistence.waitlist, planted),
+    within.forEach((v, k) => expect(v).toBeCloseTo(reference.subjects[k].within, 10));
+    const pre = within.filter((_, k) => scans[k].session === 'pre');
+    const post = within.filter((_, k) => scans[k].session === 'post');
+    const mp = mean(pre);
+    const mq = mean(post);
+    let sxy = 0;
+    let sxx = 0;
+    let syy = 0;
+    pre.forEach((x, i) => {
+      sxy += (x - mp) * (post[i] - mq);
+      sxx += (x - mp) ** 2;
+      syy += (post[i] - mq) ** 2;
+    });
+    expect(sxy / Math.sqrt(sxx * syy)).toBeGreaterThan(0.5);
+  });
+
+  it('makes the planted nodes take part in longer H1 cycles after training, and lead the training − waitlist difference then', () => {
+    const persistence = new Map<string, Float64Array>();
+    matrices.forEach((m, k) => {
+      const key = `${scans[k].group}|${scans[k].session}`;
+      if (!persistence.has(key)) persistence.set(key, new Float64Array(60));
+      const p = h1Participation(m);
+      for (let i = 0; i < 60; i++) persistence.get(key)![i] += p.persistence[i] / 12;
+    });
+    const at = (g: string, s: string): Float64Array => persistence.get(`${g}|${s}`)!;
+    expect(meanOver(at(PLANTED_GROUP, 'post'), planted)).toBeGreaterThan(
+      2 * meanOver(at(PLANTED_GROUP, 'pre'), planted),
     );
-    // The demo's promise: ranked by the training − waitlist difference in persistence-weighted
-    // participation, the four planted nodes come first.
-    const order = Array.from({ length: 60 }, (_, i) => i).sort(
-      (a, b) =>
-        persistence.training[b] -
-        persistence.waitlist[b] -
-        (persistence.training[a] - persistence.waitlist[a]),
+    const rank = (diff: (i: number) => number): number[] =>
+      Array.from({ length: 60 }, (_, i) => i).sort((a, b) => diff(b) - diff(a));
+    // The demo's promise: after training, ranked by the training − waitlist difference in
+    // persistence-weighted participation, the four planted nodes come first.
+    const post = rank((i) => at(PLANTED_GROUP, 'post')[i] - at('waitlist', 'post')[i]);
+    expect(post.slice(0, 4).sort((a, b) => a - b)).toEqual([...planted].sort((a, b) => a - b));
+    // Ranked by the interaction (change in training − change in waitlist) they are among the first eight
+    // (the cycles also pass through nodes of the networks they bridge to).
+    const interaction = rank(
+      (i) =>
+        at(PLANTED_GROUP, 'post')[i] -
+        at(PLANTED_GROUP, 'pre')[i] -
+        (at('waitlist', 'post')[i] - at('waitlist', 'pre')[i]),
     );
-    expect(order.slice(0, 4).sort((a, b) => a - b)).toEqual([...planted].sort((a, b) => a - b));
+    for (const i of planted) expect(interaction.indexOf(i)).toBeLessThan(8);
+    // Before training nothing sets them apart.
+    const pre = rank((i) => at(PLANTED_GROUP, 'pre')[i] - at('waitlist', 'pre')[i]);
+    expect(planted.filter((i) => pre.indexOf(i) < 4).length).toBeLessThan(2);
   });
 });
 

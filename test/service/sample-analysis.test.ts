@@ -2,17 +2,25 @@
  * The main job end to end: `loopwise analyze` on the bundled sample cohort, then the tables read
  * back the way a researcher would (pandas, R) and the planted regions checked.
  * The sample cohort's planted regions (sample-data/README.md): L_AUD_2, R_SMN_3, L_SAL_1, R_FPN_4
- * couple to a second network in the training group only.
+ * couple to a second network in the training group after training only. This test analyses the
+ * after-training session (ses-post, one scan per participant) with a two-group design; the
+ * longitudinal group × session design over both sessions needs repeated-measures statistics.
  */
 import { spawnSync } from 'node:child_process';
-import { existsSync, mkdtempSync, readFileSync, readdirSync } from 'node:fs';
+import { cpSync, existsSync, mkdtempSync, readFileSync, readdirSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { main } from '../../electron/cli.ts';
+import { createLoopwiseService } from '../../electron/service/service.ts';
+import { defaultAnalysisSettings, defaultStatsSettings } from '../../electron/service/settings.ts';
 
 const PLANTED = ['L_AUD_2', 'R_SMN_3', 'L_SAL_1', 'R_FPN_4'];
-const out = join(mkdtempSync(join(tmpdir(), 'loopwise-sample-')), 'out');
+const work = mkdtempSync(join(tmpdir(), 'loopwise-sample-'));
+const out = join(work, 'out');
+const postSession = join(work, 'rhythm-study-post');
+// Networks the planted regions bridge to: the H1 cycles they close also pass through these.
+const TARGET_NETWORKS = ['SMN', 'SAL', 'FPN', 'AUD'];
 let stderr = '';
 let code = -1;
 
@@ -26,10 +34,15 @@ const hasPandas = spawnSync('/usr/bin/python3', ['-c', 'import pandas'], { encod
 const hasR = spawnSync('Rscript', ['--version'], { encoding: 'utf8' }).status === 0;
 
 beforeAll(async () => {
+  // The after-training scans with the participants, sessions and node tables.
+  cpSync('sample-data/rhythm-study', postSession, {
+    recursive: true,
+    filter: (src) => !/ses-pre/.test(src),
+  });
   code = await main(
     [
       'analyze',
-      'sample-data/rhythm-study',
+      postSession,
       '--out',
       out,
       '--group',
@@ -48,9 +61,9 @@ beforeAll(async () => {
 }, 240_000);
 
 describe('loopwise analyze on the sample cohort', () => {
-  it('analyses all 40 subjects and writes every table', () => {
+  it('analyses all 24 scans of the session and writes every table', () => {
     expect(code).toBe(0);
-    expect(stderr).toMatch(/40 analysed/);
+    expect(stderr).toMatch(/24 analysed/);
     for (const f of [
       'features.tsv',
       'nodes.tsv',
@@ -69,9 +82,11 @@ describe('loopwise analyze on the sample cohort', () => {
       expect(existsSync(join(out, f)), f).toBe(true);
     }
     const features = readTsv('features.tsv');
-    expect(features).toHaveLength(40);
-    expect(Object.keys(features[0]).slice(0, 5)).toEqual([
+    expect(features).toHaveLength(24);
+    expect(features.every((r) => r.session === 'post')).toBe(true);
+    expect(Object.keys(features[0]).slice(0, 6)).toEqual([
       'participant_id',
+      'session',
       'group',
       'age',
       'sex',
@@ -95,11 +110,12 @@ describe('loopwise analyze on the sample cohort', () => {
     expect(ranked.slice(0, 4).sort()).toEqual([...PLANTED].sort());
   });
 
-  it('finds the planted regions significant after FWER correction, and no other region', () => {
+  it('finds the planted regions significant after FWER correction, and nothing outside the networks they bridge', () => {
     const rows = readTsv('stats.tsv').filter((r) => r.family === 'nodes:h1_weighted');
     expect(rows).toHaveLength(60);
     const significant = rows.filter((r) => Number(r.p_fwer) <= 0.05).map((r) => r.node_or_point);
-    expect(significant.sort()).toEqual([...PLANTED].sort());
+    for (const label of PLANTED) expect(significant).toContain(label);
+    for (const label of significant) expect(TARGET_NETWORKS).toContain(label.split('_')[1]);
     // The design adjusted for the covariates, so the scheme is Freedman–Lane; seed and count recorded.
     expect(new Set(rows.map((r) => `${r.scheme}|${r.permutations}|${r.seed}`))).toEqual(
       new Set(['freedman-lane|2000|11']),
@@ -112,7 +128,7 @@ describe('loopwise analyze on the sample cohort', () => {
     expect(p.engineVersion).toBeTruthy();
     expect(p.settings.transform).toBe('one-minus');
     expect(p.stats).toMatchObject({ groupColumn: 'group', permutations: 2000, seed: 11 });
-    expect(Object.keys(p.inputHashes)).toHaveLength(40);
+    expect(Object.keys(p.inputHashes)).toHaveLength(24);
     expect(p.grid).toHaveLength(100);
     expect(p.grid.every((x: number, i: number) => i === 0 || x > p.grid[i - 1])).toBe(true);
     for (const h of Object.values(p.inputHashes)) expect(h).toMatch(/^[0-9a-f]{64}$/);
@@ -132,10 +148,10 @@ print(json.dumps(out))`;
       const r = spawnSync('/usr/bin/python3', ['-c', script], { encoding: 'utf8' });
       expect(r.stderr).toBe('');
       const shapes = JSON.parse(r.stdout);
-      expect(shapes['features.tsv'][0]).toBe(40);
+      expect(shapes['features.tsv'][0]).toBe(24);
       // Numeric columns come out numeric, missing values as NaN (written n/a).
       expect(shapes['stats.tsv'][2][shapes['stats.tsv'][1] - 1]).toBe('int64');
-      expect(shapes['nodes.tsv'][2][5]).toBe('float64');
+      expect(shapes['nodes.tsv'][2][6]).toBe('float64');
     },
   );
 
@@ -149,7 +165,7 @@ print(json.dumps(out))`;
       { encoding: 'utf8' },
     );
     expect(r.status).toBe(0);
-    expect(r.stdout).toMatch(/features\.tsv 40 /);
+    expect(r.stdout).toMatch(/features\.tsv 24 /);
     expect(r.stdout).toMatch(/nodes\.tsv \d+ TRUE/);
   });
 });
@@ -188,4 +204,46 @@ describe('loopwise analyze on the malformed companion cohort', () => {
     // The matrix without a participant (sub-09) is a QC finding, not a subject.
     expect(status['sub-09']).toBeUndefined();
   }, 120_000);
+});
+
+describe('the longitudinal design on both sessions (group × session, participant blocks)', () => {
+  it('finds the planted regions in the interaction after FWER correction, nothing outside the networks they bridge', async () => {
+    const longOut = join(work, 'longitudinal');
+    const service = createLoopwiseService();
+    try {
+      const { runId } = await service.startRun({
+        cohort: { dir: 'sample-data/rhythm-study' },
+        settings: defaultAnalysisSettings(),
+        stats: {
+          ...defaultStatsSettings(),
+          model: 'group*session + age + sex + fd_mean',
+          test: 'group:session',
+          blocks: 'participant_id',
+          permutations: 1000,
+          seed: 11,
+        },
+        outDir: longOut,
+        workers: 2,
+      });
+      const summary = await service.waitForRun(runId);
+      expect(summary.status).toBe('done');
+    } finally {
+      await service.close();
+    }
+    const [head, ...lines] = readFileSync(join(longOut, 'stats.tsv'), 'utf8').trimEnd().split('\n');
+    const cols = head.split('\t');
+    const rows = lines
+      .map((l) => Object.fromEntries(l.split('\t').map((v, i) => [cols[i], v])))
+      .filter((r) => r.family === 'nodes:h1_weighted');
+    expect(rows).toHaveLength(60);
+    const significant = rows.filter((r) => Number(r.p_fwer) <= 0.05).map((r) => r.node_or_point);
+    for (const label of PLANTED) expect(significant).toContain(label);
+    for (const label of significant) expect(TARGET_NETWORKS).toContain(label.split('_')[1]);
+    // Scans of one participant are not exchangeable with other participants': blocked permutations.
+    expect(new Set(rows.map((r) => r.scheme)).size).toBe(1);
+    expect(rows[0].scheme).toMatch(/block/);
+    const [fhead, ...features] = readFileSync(join(longOut, 'features.tsv'), 'utf8').trimEnd().split('\n');
+    expect(fhead.split('\t').slice(0, 2)).toEqual(['participant_id', 'session']);
+    expect(features).toHaveLength(48);
+  }, 240_000);
 });

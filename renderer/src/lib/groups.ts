@@ -2,7 +2,7 @@
 import type { CohortResults, CurveBand, Table } from '../../../electron/api.ts';
 import { baseLayout, type Figure, type Trace } from './figure.ts';
 import { groupColour } from './format.ts';
-import { asNumber, findColumn, records, type Cell } from './tables.ts';
+import { asNumber, findColumn, records, scanKey, type Cell } from './tables.ts';
 
 /** Group labels in the order they first appear in the curves (the colour order everywhere). */
 export function groupsOf(results: CohortResults): string[] {
@@ -84,7 +84,9 @@ export function curveFigure(bands: CurveBand[], curve: string, groups: string[])
  * group nor covariates.
  */
 export function featureColumns(features: Table, exclude: string[]): string[] {
-  const skip = new Set(['subject', 'id', 'participant_id', 'group', ...exclude].map((s) => s.toLowerCase()));
+  const skip = new Set(
+    ['subject', 'id', 'participant_id', 'session', 'group', ...exclude].map((s) => s.toLowerCase()),
+  );
   return features.columns.filter((c, i) => {
     if (skip.has(c.toLowerCase())) return false;
     const values = features.rows
@@ -125,7 +127,7 @@ export function featureByGroup(
     if (g === null || g === undefined || v === null) continue;
     const key = String(g);
     const entry = out.get(key) ?? { group: key, subjects: [], values: [] };
-    entry.subjects.push(subjectCol ? String(r[subjectCol]) : '');
+    entry.subjects.push(subjectCol ? scanKey(r, subjectCol) : '');
     entry.values.push(v);
     out.set(key, entry);
   }

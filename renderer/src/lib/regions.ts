@@ -4,7 +4,7 @@ import { hedgesG } from '../../../electron/engine/stats/effect-size.ts';
 import { baseLayout, type Figure, type Trace } from './figure.ts';
 import type { NodeLayout } from './layout.ts';
 import { CORRECTED_P } from './groups.ts';
-import { asNumber, findColumn, records } from './tables.ts';
+import { asNumber, findColumn, records, scanKey } from './tables.ts';
 
 export interface NodeEffect {
   node: number;
@@ -94,7 +94,7 @@ export function nodeEffects(
     { node: number; label: string; network: string | null; measure: string; a: number[]; b: number[] }
   >();
   for (const r of records(nodeScores)) {
-    const g = groupOf.get(String(r[subj]));
+    const g = groupOf.get(scanKey(r, subj));
     if (g !== groupA && g !== groupB) continue;
     const v = asNumber(r[valueCol]);
     const node = asNumber(r[nodeCol]);

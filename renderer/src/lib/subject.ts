@@ -2,7 +2,7 @@
 import type { NodeInfo, SubjectResult, Table } from '../../../electron/api.ts';
 import { baseLayout, type Figure, type Trace } from './figure.ts';
 import type { NodeLayout } from './layout.ts';
-import { asNumber, findColumn, records } from './tables.ts';
+import { asNumber, findColumn, records, scanKey } from './tables.ts';
 
 export interface IntervalRow {
   /** Stable id across both plots: `${dim}:${k}`, k the position in the subject's H_dim diagram. */
@@ -292,7 +292,7 @@ export function subjectNodeScores(s: SubjectResult, table: Table | null): Record
   if (!subj || !node || !measure || !value) return {};
   const out: Record<string, number[]> = {};
   for (const r of records(table)) {
-    if (String(r[subj]) !== s.id) continue;
+    if (scanKey(r, subj) !== s.id) continue;
     const i = asNumber(r[node]);
     const v = asNumber(r[value]);
     if (i === null || i < 0 || i >= s.n) continue;

@@ -20,6 +20,16 @@ export function column(table: Table, name: string): Cell[] {
 }
 
 /** Rows as objects, column → value. */
+/**
+ * The scan key of a row of a service table: the participant, plus `_ses-LABEL` where the table has
+ * a session column (the key the service's subject entries carry).
+ */
+export function scanKey(r: Record<string, Cell>, idColumn: string): string {
+  const id = String(r[idColumn]);
+  const session = r.session;
+  return session === null || session === undefined || session === '' ? id : `${id}_ses-${String(session)}`;
+}
+
 export function records(table: Table): Array<Record<string, Cell>> {
   return table.rows.map((r) => Object.fromEntries(table.columns.map((c, i) => [c, r[i] ?? null])));
 }
