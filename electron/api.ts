@@ -34,6 +34,8 @@ export interface MatrixSource {
   stackIndex?: number;
   /** The file holds region time series (T × N) to be correlated rather than a matrix. */
   timeSeries?: boolean;
+  /** With timeSeries: the correlation estimator (absent: Pearson). */
+  correlation?: 'pearson' | 'ledoit-wolf';
 }
 
 export interface SubjectEntry {
@@ -173,6 +175,14 @@ export interface Provenance {
   cohortRoot?: string;
   /** The grid every curve and curve-derived feature is sampled on (set once the features are computed). */
   grid?: number[];
+  /**
+   * 'fixed': the grid's range was given (settings.gridRange), so a subject's features do not depend on
+   * the other subjects; 'cohort': the range is the cohort's filtration range, so features are
+   * comparable only within this run.
+   */
+  gridSource?: 'fixed' | 'cohort';
+  /** Present when the matrices were correlated from region time series: the estimator used. */
+  correlation?: 'pearson' | 'ledoit-wolf';
   /** Each subject's input file (relative to cohortRoot) with the SHA-256 of the file's bytes. */
   inputFiles?: Array<{
     subject: string;
@@ -186,7 +196,7 @@ export interface Provenance {
 
 // ---------- Results and the service's methods ----------
 
-/** A rectangular table as written to TSV/CSV: column names and rows (null = missing, written as 'n/a'). */
+/** A rectangular table as written to TSV/CSV: column names and rows (null = missing, written as NA). */
 export interface Table {
   columns: string[];
   rows: Array<Array<string | number | null>>;
@@ -255,6 +265,8 @@ export interface OpenCohortRequest {
   variable?: string;
   /** The files hold region time series (T × N), correlated per subject when loaded. */
   timeSeries?: boolean;
+  /** With timeSeries: how the series become a correlation matrix (default 'pearson'; 'ledoit-wolf' shrinks the covariance). */
+  correlation?: 'pearson' | 'ledoit-wolf';
   /** Participants-table column naming each subject's file (relative to dir). Default: a column called matrix_file, file, filename or path. */
   fileColumn?: string;
   /** Only files whose name contains this text are matrices (e.g. '_connectome'). */

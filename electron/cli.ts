@@ -1,6 +1,8 @@
 /**
  * The `loopwise` command-line door. Each command lives in electron/cli/<name>.ts and returns
- * an exit code: 0 success, 1 the job failed (e.g. no usable subject), 2 a usage or input error.
+ * an exit code: 0 success, 1 the job failed (e.g. no usable subject), 2 a usage or input error
+ * (an option the contract refuses, a column the cohort lacks), 3 (analyze, merge) the tables are
+ * written but the statistics asked for could not run, 130 cancelled.
  * Commands are imported only when run, so `--help` and `--version` never load the service.
  */
 import pkg from '../package.json' with { type: 'json' };

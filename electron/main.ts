@@ -4,15 +4,18 @@
  * and the renderer reaches it only through the preload bridge. Every IPC call is checked here:
  * its sender, its method, its arguments' shapes, and that every path it names is a folder the
  * user picked in a native dialog (or the bundled sample cohort, or the default output folder).
+ * Cohort folders (picked as such, or opened) and the sample are read-only; outputs go only into
+ * the default output folder or folders picked for output (service/confine.ts, as in browser mode).
  */
 import { app, BrowserWindow, dialog, ipcMain, session, shell, type IpcMainInvokeEvent } from 'electron';
 import { existsSync, mkdirSync } from 'node:fs';
 import { dirname, join, sep } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
-import type { LoopwiseApi } from './api.ts';
+import type { LoopwiseApi, OpenCohortRequest } from './api.ts';
+import { callPaths, checkDoorPaths, realPathOf } from './service/confine.ts';
 import { createLoopwiseService } from './service/service.ts';
 import { BadRequest, checkCall, isApiMethod, type DoorInfo } from './web-client.ts';
-import { CONTENT_SECURITY_POLICY, insideRoots, realPathOf } from './web.ts';
+import { CONTENT_SECURITY_POLICY } from './web.ts';
 
 export const CALL_CHANNEL = 'loopwise:call';
 export const PROGRESS_CHANNEL = 'loopwise:progress';
@@ -32,10 +35,14 @@ export interface ElectronAppOptions {
 /** Wires the window, its security policy and the IPC bridge to the given service. */
 export function startElectronApp(api: LoopwiseApi, opts: ElectronAppOptions): void {
   const pageUrl = pathToFileURL(opts.indexHtml).href;
-  // The folders this session may touch: grows only through native dialogs.
+  // The folders this session may touch: grow only through native dialogs. Every one is readable
+  // (`roots`, shared with the service's allowedRoots); outputs go only into writeRoots.
   const roots = opts.roots ?? new Set<string>();
+  const writeRoots = new Set<string>([opts.defaultOutDir]);
   roots.add(opts.defaultOutDir);
   if (opts.sampleCohort) roots.add(opts.sampleCohort);
+  // Never written: the sample and every cohort opened in this session.
+  const cohorts = new Set<string>(opts.sampleCohort ? [opts.sampleCohort] : []);
 
   const fromOurPage = (e: IpcMainInvokeEvent) => e.senderFrame?.url.split('#')[0].split('?')[0] === pageUrl;
 
@@ -62,15 +69,20 @@ export function startElectronApp(api: LoopwiseApi, opts: ElectronAppOptions): vo
       const picked = win ? await dialog.showOpenDialog(win, options) : await dialog.showOpenDialog(options);
       if (picked.canceled || picked.filePaths.length === 0) return null;
       roots.add(picked.filePaths[0]);
+      if (purpose === 'output') writeRoots.add(picked.filePaths[0]);
       return picked.filePaths[0];
     }
     if (!isApiMethod(method)) throw new BadRequest(`no such method: ${method}`);
     const checked = checkCall(method, args);
-    const realRoots = [...roots].filter((r) => existsSync(r)).map((r) => realPathOf(r));
-    for (const p of checked.paths) {
-      if (!insideRoots(p, realRoots)) {
-        throw new Error(`${p} is not inside a folder you picked; choose it with the folder button first`);
-      }
+    const refusal = checkDoorPaths(callPaths(method, checked), {
+      read: [...roots],
+      write: [...writeRoots],
+      cohorts: [...cohorts],
+    });
+    if (refusal) throw new Error(`${refusal}; choose a folder with the folder button first`);
+    if (method === 'openCohort' || method === 'startRun') {
+      const arg = checked.args[0] as OpenCohortRequest | { cohort: OpenCohortRequest };
+      cohorts.add(realPathOf('cohort' in arg ? arg.cohort.dir : arg.dir));
     }
     const fn = api[method] as (...a: unknown[]) => Promise<unknown>;
     return fn.apply(api, checked.args);

@@ -65,17 +65,19 @@ async function main(): Promise<void> {
   const sample = join(sampleRoot, 'rhythm-study');
   const outDir = resolve(values.out ?? join(homedir(), 'Loopwise'));
   mkdirSync(outDir, { recursive: true });
-  const roots = [outDir, ...(values.root ?? []).map((r) => resolve(r))];
+  // Read roots (cohorts, the sample) are only read; outputs go only into the --out folder.
+  const roots = (values.root ?? []).map((r) => resolve(r));
   if (values.cohort) roots.push(resolve(values.cohort));
   if (existsSync(sampleRoot)) roots.push(sampleRoot);
 
   const api = createLoopwiseService({
     cacheDir: join(homedir(), '.cache', 'loopwise'),
-    allowedRoots: () => roots,
+    allowedRoots: () => [...roots, outDir],
   });
   const server = await startWebServer(api, {
     port: values.port ? Number(values.port) : 0,
     roots,
+    writeRoots: [outDir],
     staticDir: join(repo, 'dist'),
     sampleCohort: values.cohort ? resolve(values.cohort) : existsSync(sample) ? sample : null,
     defaultOutDir: outDir,

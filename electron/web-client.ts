@@ -15,6 +15,15 @@ import type {
   StatsSettings,
   SubjectResult,
 } from './api.ts';
+import {
+  TABLE_FORMATS,
+  problemText,
+  validateAnalysisSettings,
+  validateCohortRequest,
+  validateRunRequest,
+  validateStatsSettings,
+} from './contract.ts';
+import type { Problem } from './contract.ts';
 
 /** What a door tells the renderer about itself. */
 export interface DoorInfo {
@@ -52,11 +61,13 @@ export function isApiMethod(name: string): name is ApiMethod {
   return (API_METHODS as readonly string[]).includes(name);
 }
 
-/** A call whose arguments do not have the contract's shape; doors answer it with 400. */
+/** A call whose arguments do not have the contract's shape; doors answer it with 400 (and the problems). */
 export class BadRequest extends Error {
-  constructor(message: string) {
+  readonly problems: Problem[];
+  constructor(message: string, problems: Problem[] = []) {
     super(message);
     this.name = 'BadRequest';
+    this.problems = problems;
   }
 }
 
@@ -73,30 +84,6 @@ function str(v: unknown, what: string, maxLength = 4096): string {
   return v;
 }
 
-function optStr(v: unknown, what: string): string | undefined {
-  return v === undefined || v === null ? undefined : str(v, what);
-}
-
-function num(v: unknown, what: string, min: number, max: number, integer = false): number {
-  if (
-    typeof v !== 'number' ||
-    !Number.isFinite(v) ||
-    v < min ||
-    v > max ||
-    (integer && !Number.isInteger(v))
-  ) {
-    throw new BadRequest(`${what} must be ${integer ? 'an integer' : 'a number'} in [${min}, ${max}]`);
-  }
-  return v;
-}
-
-function oneOf<T extends string>(v: unknown, what: string, allowed: readonly T[]): T {
-  if (typeof v !== 'string' || !(allowed as readonly string[]).includes(v)) {
-    throw new BadRequest(`${what} must be one of ${allowed.join(', ')}`);
-  }
-  return v as T;
-}
-
 function bool(v: unknown, what: string): boolean {
   if (typeof v !== 'boolean') throw new BadRequest(`${what} must be true or false`);
   return v;
@@ -106,104 +93,84 @@ function arity(args: unknown[], n: number, method: string): void {
   if (args.length !== n) throw new BadRequest(`${method} takes ${n} argument${n === 1 ? '' : 's'}`);
 }
 
+/** Throws BadRequest carrying the contract's problems, when there are any. */
+function refuse(problems: Problem[]): void {
+  if (problems.length > 0)
+    throw new BadRequest(problems.map((p) => problemText(p, 'field')).join('; '), problems);
+}
+
+/** Copies only the named fields that are present (not undefined) from v. */
+function pick(v: Obj, fields: readonly string[]): Obj {
+  const out: Obj = {};
+  for (const f of fields) if (v[f] !== undefined) out[f] = v[f];
+  return out;
+}
+
 export function checkOpenCohort(v: unknown): OpenCohortRequest {
-  if (!isObj(v)) throw new BadRequest('the cohort request must be an object');
-  const req: OpenCohortRequest = { dir: str(v.dir, 'cohort.dir') };
-  const participants = optStr(v.participants, 'cohort.participants');
-  const nodes = optStr(v.nodes, 'cohort.nodes');
+  refuse(validateCohortRequest(v));
+  const o = v as Obj;
+  // Absent or null optional fields are left out; the contract has checked the others.
+  const given = pick(o, [
+    'participants',
+    'nodes',
+    'variable',
+    'fileColumn',
+    'match',
+    'timeSeries',
+    'correlation',
+    'columnKinds',
+  ]);
+  for (const [k, x] of Object.entries(given)) if (x === null) delete given[k];
+  const req = { dir: o.dir as string, ...given } as OpenCohortRequest;
   // Tables named relative to the cohort folder are made absolute here, so the path the door checks
   // is the path the service reads (whatever folder the service resolves relative names against).
   const absolute = (p: string) => p.startsWith('/') || /^[A-Za-z]:[\\/]/.test(p) || p.startsWith('\\\\');
   const within = (p: string) => (absolute(p) ? p : `${req.dir.replace(/[\\/]+$/, '')}/${p}`);
-  if (participants !== undefined) req.participants = within(participants);
-  if (nodes !== undefined) req.nodes = within(nodes);
-  const variable = optStr(v.variable, 'cohort.variable');
-  const fileColumn = optStr(v.fileColumn, 'cohort.fileColumn');
-  const match = optStr(v.match, 'cohort.match');
-  if (variable !== undefined) req.variable = variable;
-  if (fileColumn !== undefined) req.fileColumn = fileColumn;
-  if (match !== undefined) req.match = match;
-  if (v.timeSeries !== undefined && v.timeSeries !== null)
-    req.timeSeries = bool(v.timeSeries, 'cohort.timeSeries');
-  if (v.columnKinds !== undefined && v.columnKinds !== null) {
-    if (!isObj(v.columnKinds)) throw new BadRequest('cohort.columnKinds must be an object');
-    const kinds: Record<string, 'numeric' | 'categorical'> = {};
-    for (const [k, kind] of Object.entries(v.columnKinds)) {
-      kinds[str(k, 'cohort.columnKinds key', 256)] = oneOf(kind, `cohort.columnKinds.${k}`, [
-        'numeric',
-        'categorical',
-      ] as const);
-    }
-    req.columnKinds = kinds;
-  }
+  if (req.participants !== undefined) req.participants = within(req.participants);
+  if (req.nodes !== undefined) req.nodes = within(req.nodes);
+  if (req.columnKinds) req.columnKinds = { ...req.columnKinds };
   return req;
 }
 
 export function checkSettings(v: unknown): AnalysisSettings {
-  if (!isObj(v)) throw new BadRequest('settings must be an object');
-  const cap = v.cap;
-  if (!isObj(cap)) throw new BadRequest('settings.cap must be an object');
-  const capKind = oneOf(cap.kind, 'settings.cap.kind', ['none', 'distance', 'density'] as const);
-  const range = v.gridRange;
-  let gridRange: [number, number] | null = null;
-  if (range !== null && range !== undefined) {
-    if (!Array.isArray(range) || range.length !== 2)
-      throw new BadRequest('settings.gridRange must be [lo, hi]');
-    const lo = num(range[0], 'settings.gridRange[0]', -1e12, 1e12);
-    const hi = num(range[1], 'settings.gridRange[1]', -1e12, 1e12);
-    if (!(hi > lo)) throw new BadRequest('settings.gridRange must have hi > lo');
-    gridRange = [lo, hi];
-  }
-  if (!Array.isArray(v.dropRegions)) throw new BadRequest('settings.dropRegions must be an array');
+  refuse(validateAnalysisSettings(v));
+  const o = v as Obj;
+  const cap = o.cap as AnalysisSettings['cap'];
   return {
-    input: oneOf(v.input, 'settings.input', ['correlation', 'weight', 'distance'] as const),
-    transform: oneOf(v.transform, 'settings.transform', [
-      'one-minus',
-      'one-minus-abs',
-      'sqrt',
-      'inverse',
-      'neg-log',
-      'identity',
-    ] as const),
-    maxDim: num(v.maxDim, 'settings.maxDim', 1, 2, true) as 1 | 2,
-    cap:
-      capKind === 'none'
-        ? { kind: 'none' }
-        : capKind === 'distance'
-          ? { kind: 'distance', value: num(cap.value, 'settings.cap.value', 0, 1e12) }
-          : { kind: 'density', value: num(cap.value, 'settings.cap.value', 0, 1) },
-    representatives: bool(v.representatives, 'settings.representatives'),
-    persistenceFloor: num(v.persistenceFloor, 'settings.persistenceFloor', 0, 1e12),
-    gridPoints: num(v.gridPoints, 'settings.gridPoints', 2, 10_000, true),
-    gridRange,
-    landscapeLevels: num(v.landscapeLevels, 'settings.landscapeLevels', 0, 100, true),
-    dropRegions: v.dropRegions.map((r, i) => num(r, `settings.dropRegions[${i}]`, 0, 1e6, true)),
+    input: o.input as AnalysisSettings['input'],
+    transform: o.transform as AnalysisSettings['transform'],
+    maxDim: o.maxDim as 1 | 2,
+    cap: cap.kind === 'none' ? { kind: 'none' } : { kind: cap.kind, value: cap.value },
+    representatives: o.representatives as boolean,
+    persistenceFloor: o.persistenceFloor as number,
+    gridPoints: o.gridPoints as number,
+    gridRange: Array.isArray(o.gridRange) ? [o.gridRange[0] as number, o.gridRange[1] as number] : null,
+    landscapeLevels: o.landscapeLevels as number,
+    dropRegions: [...(o.dropRegions as number[])],
   };
 }
 
-/** An optional string setting: absent or null → null. */
-function nullableStr(v: unknown, name: string): string | null {
-  return v === undefined || v === null ? null : str(v, name, 1024);
-}
-
 export function checkStats(v: unknown): StatsSettings {
-  if (!isObj(v)) throw new BadRequest('stats must be an object');
-  if (!Array.isArray(v.covariates)) throw new BadRequest('stats.covariates must be an array');
+  refuse(validateStatsSettings(v));
+  const o = v as Obj;
+  const orNull = (x: unknown): string | null => (typeof x === 'string' ? x : null);
   return {
-    groupColumn: v.groupColumn === null ? null : str(v.groupColumn, 'stats.groupColumn', 256),
-    effect: nullableStr(v.effect, 'stats.effect'),
-    model: nullableStr(v.model, 'stats.model'),
-    test: nullableStr(v.test, 'stats.test'),
-    reference: nullableStr(v.reference, 'stats.reference'),
-    blocks: nullableStr(v.blocks, 'stats.blocks'),
-    covariates: v.covariates.map((c, i) => str(c, `stats.covariates[${i}]`, 256)),
-    permutations: num(v.permutations, 'stats.permutations', 0, 1_000_000, true),
-    seed: num(v.seed, 'stats.seed', 0, 2 ** 32 - 1, true),
+    groupColumn: orNull(o.groupColumn),
+    effect: orNull(o.effect),
+    model: orNull(o.model),
+    test: orNull(o.test),
+    reference: orNull(o.reference),
+    blocks: orNull(o.blocks),
+    covariates: [...(o.covariates as string[])],
+    permutations: o.permutations as number,
+    seed: o.seed as number,
   };
 }
 
 function checkStartRun(v: unknown): StartRunRequest {
   if (!isObj(v)) throw new BadRequest('the run request must be an object');
+  // Every problem of the three parts at once, so a form can show them all.
+  refuse(validateRunRequest({ cohort: v.cohort, settings: v.settings, stats: v.stats }));
   return {
     cohort: checkOpenCohort(v.cohort),
     settings: checkSettings(v.settings),
@@ -211,10 +178,14 @@ function checkStartRun(v: unknown): StartRunRequest {
     outDir: v.outDir === null || v.outDir === undefined ? null : str(v.outDir, 'outDir'),
     // Never taken from a door: cacheDir (a path the service writes), shard and workers (CLI matters).
     ...(v.force === undefined ? {} : { force: bool(v.force, 'force') }),
-    ...(v.tableFormat === undefined
-      ? {}
-      : { tableFormat: oneOf(v.tableFormat, 'tableFormat', ['tsv', 'csv'] as const) }),
+    ...(v.tableFormat === undefined ? {} : { tableFormat: tableFormat(v.tableFormat) }),
   };
+}
+
+function tableFormat(v: unknown): 'tsv' | 'csv' {
+  if (v !== 'tsv' && v !== 'csv')
+    throw new BadRequest(`tableFormat must be one of ${TABLE_FORMATS.join(', ')}`);
+  return v;
 }
 
 /** A checked call: the arguments rebuilt from scratch (no stray fields) and every path they name. */
@@ -265,7 +236,10 @@ function cohortPaths(req: OpenCohortRequest): string[] {
 
 // ---------- The browser client ----------
 
-/** Where the token lives in requests: a header for fetch, a query parameter for EventSource. */
+/**
+ * The token's header. The page itself needs no token: its first load traded the token for an
+ * HttpOnly cookie its requests carry. Other clients (scripts, tests) send this header.
+ */
 export const TOKEN_HEADER = 'x-loopwise-token';
 
 interface EventSourceLike {
@@ -276,30 +250,37 @@ interface EventSourceLike {
 export interface HttpClientOptions {
   /** e.g. 'http://127.0.0.1:5123' or '' for the page's own origin. */
   base: string;
-  token: string;
+  /** Sent as a header when given; the page leaves it out and relies on its cookie. */
+  token?: string | null;
   fetch?: typeof fetch;
-  eventSource?: (url: string) => EventSourceLike;
+  /** Opens the event stream (default the browser's EventSource, which sends the cookie). */
+  eventSource?: (url: string, headers: Record<string, string>) => EventSourceLike;
 }
 
 /** The LoopwiseDoor over loopback HTTP: POST /api/<method> with a JSON array of arguments; progress by SSE. */
 export function createHttpClient(opts: HttpClientOptions): LoopwiseDoor {
   const doFetch = opts.fetch ?? ((input: RequestInfo | URL, init?: RequestInit) => fetch(input, init));
+  const tokenHeaders: Record<string, string> = opts.token ? { [TOKEN_HEADER]: opts.token } : {};
   const call = async <T>(method: string, args: unknown[]): Promise<T> => {
     const res = await doFetch(`${opts.base}/api/${method}`, {
       method: 'POST',
-      headers: { 'content-type': 'application/json', [TOKEN_HEADER]: opts.token },
+      headers: { 'content-type': 'application/json', ...tokenHeaders },
       body: JSON.stringify(args),
     });
     const text = await res.text();
     if (!res.ok) {
       let message = text;
+      let problems: Problem[] = [];
       try {
         const body: unknown = JSON.parse(text);
         if (isObj(body) && typeof body.error === 'string') message = body.error;
+        if (isObj(body) && Array.isArray(body.problems)) problems = body.problems as Problem[];
       } catch {
         // not JSON: keep the text as it came
       }
-      throw new Error(`${method}: ${message || res.statusText} (HTTP ${res.status})`);
+      const error = new Error(`${method}: ${message || res.statusText} (HTTP ${res.status})`);
+      // The contract's problems, so the renderer can show each under its field.
+      throw Object.assign(error, { problems });
     }
     return (text === '' ? undefined : JSON.parse(text)) as T;
   };
@@ -307,8 +288,10 @@ export function createHttpClient(opts: HttpClientOptions): LoopwiseDoor {
   const listeners = new Set<(e: ProgressEvent) => void>();
   let source: EventSourceLike | null = null;
   const openSource = () => {
-    const url = `${opts.base}/api/events?token=${encodeURIComponent(opts.token)}`;
-    source = opts.eventSource ? opts.eventSource(url) : (new EventSource(url) as unknown as EventSourceLike);
+    const url = `${opts.base}/api/events`;
+    source = opts.eventSource
+      ? opts.eventSource(url, tokenHeaders)
+      : (new EventSource(url) as unknown as EventSourceLike);
     source.onmessage = (e) => {
       const event = JSON.parse(e.data) as ProgressEvent;
       for (const l of listeners) l(event);

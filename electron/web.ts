@@ -1,23 +1,31 @@
 /**
  * Browser mode: the renderer built by Vite (dist/) and the service behind loopback HTTP.
- * Bound to 127.0.0.1 only; every /api/ request carries a random token (401 without it);
- * every path an argument names must lie inside the folders the user named at start (403 otherwise);
- * progress travels as server-sent events.
+ * Bound to 127.0.0.1 only. The address printed at start carries a random token once: the first
+ * page load trades it for an HttpOnly, SameSite=Strict cookie and is redirected to the bare
+ * address, so the token stays out of the page's address and history. Every /api/ request must
+ * carry the token in that cookie or in the x-loopwise-token header (never in the URL; 401
+ * otherwise), and requests from another origin are refused (403), as are paths outside the
+ * folders named at start: read roots (cohorts, the sample) are only read; outputs go only inside
+ * write roots, and never into a cohort folder. Progress travels as server-sent events.
  */
 import { randomBytes, timingSafeEqual } from 'node:crypto';
-import { existsSync, realpathSync, statSync } from 'node:fs';
+import { existsSync, statSync } from 'node:fs';
 import { readFile } from 'node:fs/promises';
 import { createServer, type IncomingMessage, type ServerResponse } from 'node:http';
 import type { AddressInfo } from 'node:net';
-import { dirname, extname, isAbsolute, join, relative, resolve, sep } from 'node:path';
-import type { LoopwiseApi, ProgressEvent } from './api.ts';
+import { extname, resolve, sep } from 'node:path';
+import type { LoopwiseApi, OpenCohortRequest, ProgressEvent } from './api.ts';
+import { ContractError } from './contract.ts';
+import { callPaths, checkDoorPaths, insideRoots, realPathOf } from './service/confine.ts';
 import { BadRequest, checkCall, isApiMethod, TOKEN_HEADER, type DoorInfo } from './web-client.ts';
 
 export interface WebServerOptions {
   /** 0 picks a free port. */
   port: number;
-  /** The folders the server may read from or write to (cohort folders, output folders). */
+  /** The folders the server may read (cohort folders, the sample); never written. */
   roots: string[];
+  /** The folders outputs may go into (default: defaultOutDir, when given). */
+  writeRoots?: string[];
   /** The built renderer; when absent or missing, only /api/ is served. */
   staticDir?: string;
   /** Fixed token (tests); a fresh random one otherwise. */
@@ -32,7 +40,34 @@ export interface WebServer {
   port: number;
   token: string;
   roots: string[];
+  writeRoots: string[];
   close(): Promise<void>;
+}
+
+/** The cookie the first page load sets: the token, for the page's own requests only. */
+export const TOKEN_COOKIE = 'loopwise-token';
+
+/** The token of a request's cookie header, if any. */
+function cookieToken(header: string | undefined): string | null {
+  for (const part of (header ?? '').split(';')) {
+    const eq = part.indexOf('=');
+    if (eq > 0 && part.slice(0, eq).trim() === TOKEN_COOKIE) return part.slice(eq + 1).trim();
+  }
+  return null;
+}
+
+/**
+ * Why a request comes from somewhere else than the page this server served, or null: a foreign
+ * Origin header, or the browser's own word (Sec-Fetch-Site) that another site (or another port of
+ * this host) sent it.
+ */
+export function foreignRequest(headers: IncomingMessage['headers'], port: number): string | null {
+  const origin = headers.origin;
+  if (origin !== undefined && origin !== `http://127.0.0.1:${port}` && origin !== `http://localhost:${port}`)
+    return `requests from ${origin} are not accepted`;
+  const site = headers['sec-fetch-site'];
+  if (site === 'cross-site' || site === 'same-site') return 'requests from another site are not accepted';
+  return null;
 }
 
 /** The policy the page runs under: nothing from elsewhere, no eval, inline styles for Plotly only. */
@@ -62,29 +97,8 @@ const TYPES: Record<string, string> = {
 
 const MAX_BODY = 1 << 20;
 
-/** The real path of p, or of its nearest existing ancestor joined with the rest (for folders not yet made). */
-export function realPathOf(p: string): string {
-  let head = resolve(p);
-  const tail: string[] = [];
-  while (!existsSync(head)) {
-    const up = dirname(head);
-    if (up === head) break;
-    tail.unshift(head.slice(up.length).replace(/^[\\/]+/, ''));
-    head = up;
-  }
-  const real = existsSync(head) ? realpathSync(head) : head;
-  return tail.length ? join(real, ...tail) : real;
-}
-
-/** True when p (after resolving symlinks and '..') is one of the roots or inside one. */
-export function insideRoots(p: string, realRoots: string[]): boolean {
-  if (!isAbsolute(p)) return false;
-  const real = realPathOf(p);
-  return realRoots.some((root) => {
-    const rel = relative(root, real);
-    return rel === '' || (!rel.startsWith('..') && !isAbsolute(rel) && !rel.startsWith(sep));
-  });
-}
+// The path checks live in service/confine.ts, shared with the Electron door.
+export { insideRoots, realPathOf };
 
 function sameToken(given: string | null | undefined, token: string): boolean {
   if (!given) return false;
@@ -126,7 +140,14 @@ export async function startWebServer(api: LoopwiseApi, options: WebServerOptions
   for (const r of roots) {
     if (!existsSync(r) || !statSync(r).isDirectory()) throw new Error(`Folder not found: ${r}`);
   }
-  const realRoots = roots.map((r) => realpathSync(r));
+  const writeRoots = (options.writeRoots ?? (options.defaultOutDir ? [options.defaultOutDir] : [])).map((r) =>
+    resolve(r),
+  );
+  for (const r of writeRoots) {
+    if (!existsSync(r) || !statSync(r).isDirectory()) throw new Error(`Folder not found: ${r}`);
+  }
+  // Cohort folders are read-only: the sample, and every cohort a call of this session names.
+  const cohorts = new Set<string>(options.sampleCohort ? [resolve(options.sampleCohort)] : []);
   const staticDir = options.staticDir && existsSync(options.staticDir) ? resolve(options.staticDir) : null;
   const sseClients = new Set<ServerResponse>();
   let port = options.port;
@@ -145,12 +166,16 @@ export async function startWebServer(api: LoopwiseApi, options: WebServerOptions
     version: options.version ?? '0.0.0',
     sampleCohort: options.sampleCohort ?? null,
     defaultOutDir: options.defaultOutDir ?? null,
-    roots,
+    roots: [...new Set([...roots, ...writeRoots])],
   });
 
   async function handleApi(req: IncomingMessage, res: ServerResponse, url: URL): Promise<void> {
-    const given = (req.headers[TOKEN_HEADER] as string | undefined) ?? url.searchParams.get('token');
-    if (!sameToken(given, token)) return send(res, 401, { error: 'missing or wrong token' });
+    const foreign = foreignRequest(req.headers, port);
+    if (foreign) return send(res, 403, { error: foreign });
+    // The token travels in the cookie set by the first page load, or in a header: never in the URL.
+    const given = (req.headers[TOKEN_HEADER] as string | undefined) ?? cookieToken(req.headers.cookie);
+    if (!sameToken(given, token))
+      return send(res, 401, { error: 'missing or wrong token: open the address printed by npm start' });
     const name = url.pathname.slice('/api/'.length);
 
     if (name === 'events') {
@@ -181,28 +206,60 @@ export async function startWebServer(api: LoopwiseApi, options: WebServerOptions
     try {
       checked = checkCall(name, args);
     } catch (e) {
-      return send(res, 400, { error: (e as Error).message });
+      const problems = e instanceof BadRequest ? e.problems : [];
+      return send(res, 400, { error: (e as Error).message, ...(problems.length ? { problems } : {}) });
     }
-    for (const p of checked.paths) {
-      if (!insideRoots(p, realRoots)) {
-        return send(res, 403, {
-          error: `${p} is outside the folders this session may use (${roots.join(', ')})`,
-        });
-      }
+    const refusal = checkDoorPaths(callPaths(name, checked), {
+      read: roots,
+      write: writeRoots,
+      cohorts: [...cohorts],
+    });
+    if (refusal) return send(res, 403, { error: refusal });
+    if (name === 'openCohort' || name === 'startRun') {
+      const cohort =
+        name === 'openCohort' ? checked.args[0] : (checked.args[0] as { cohort: unknown }).cohort;
+      cohorts.add(realPathOf((cohort as OpenCohortRequest).dir));
     }
     try {
       const fn = api[name] as (...a: unknown[]) => Promise<unknown>;
       const result = await fn.apply(api, checked.args);
       return send(res, 200, result === undefined ? null : result);
     } catch (e) {
-      // A refusal to overwrite the user's files is a conflict the user can resolve, not a server fault.
-      const conflict = e instanceof Error && e.name === 'OutDirError';
-      return send(res, conflict ? 409 : 500, { error: e instanceof Error ? e.message : String(e) });
+      // Settings the contract refuses once the cohort is open (e.g. an unknown column): a bad request.
+      if (e instanceof ContractError) return send(res, 400, { error: e.message, problems: e.problems });
+      // A refusal to overwrite the user's files is a conflict the user can resolve, not a server
+      // fault; so is a folder that cannot take the write (full disk: 507, read-only: 403).
+      const kind = e instanceof Error ? e.name : '';
+      const code = (e as { code?: string }).code;
+      const status =
+        kind === 'OutDirError'
+          ? 409
+          : kind === 'WriteError'
+            ? code === 'ENOSPC' || code === 'EDQUOT'
+              ? 507
+              : 403
+            : 500;
+      return send(res, status, { error: e instanceof Error ? e.message : String(e) });
     }
   }
 
   async function handleStatic(req: IncomingMessage, res: ServerResponse, url: URL): Promise<void> {
     if (req.method !== 'GET' && req.method !== 'HEAD') return send(res, 405, { error: 'GET only' });
+    const offered = url.searchParams.get('token');
+    if (offered !== null) {
+      // The first load: the token becomes a cookie and leaves the address (and so the history).
+      if (!sameToken(offered, token))
+        return send(res, 401, { error: 'wrong token: open the address printed by npm start' });
+      url.searchParams.delete('token');
+      res.writeHead(303, {
+        location: url.pathname + url.search,
+        'set-cookie': `${TOKEN_COOKIE}=${token}; HttpOnly; SameSite=Strict; Path=/`,
+        'cache-control': 'no-store',
+        'referrer-policy': 'no-referrer',
+      });
+      res.end();
+      return;
+    }
     if (!staticDir) return send(res, 404, { error: 'the renderer is not built: run npm run build' });
     let rel: string;
     try {
@@ -254,6 +311,7 @@ export async function startWebServer(api: LoopwiseApi, options: WebServerOptions
     port,
     token,
     roots,
+    writeRoots,
     close: async () => {
       unsubscribe();
       clearInterval(heartbeat);

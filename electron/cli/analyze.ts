@@ -3,28 +3,40 @@
  * diagrams of every subject on a worker pool, committed one by one to a cache so an interrupted
  * run resumes; then the cohort's tables. Progress goes to stderr (a bar on a terminal, plain
  * lines otherwise); Ctrl-C cancels cleanly. Exit 0 when at least one subject was analysed, 1 when
- * none, 2 on a usage error or a refused output folder, 130 when cancelled.
+ * none, 2 on a usage error, an unknown column or a refused output folder, 3 when the tables are
+ * written but the statistics asked for could not run, 130 when cancelled.
  */
 import { availableParallelism } from 'node:os';
-import { resolve } from 'node:path';
-import type { AnalysisSettings, ProgressEvent, RunSummary, StartRunRequest, StatsSettings } from '../api.ts';
+import type { AnalysisSettings, ProgressEvent, RunSummary, StartRunRequest } from '../api.ts';
 import type { CliIO } from '../cli.ts';
 import { createLoopwiseService } from '../service/service.ts';
 import { defaultAnalysisSettings, defaultStatsSettings } from '../service/settings.ts';
+import { statisticsRequested, validateAnalysisSettings } from '../contract.ts';
 import { UsageError, numberOption, parseArgs } from './args.ts';
-import { FILTRATION_VALUE_OPTIONS, filtrationOptions } from './filtration-options.ts';
-import type { ParsedArgs } from './args.ts';
+import {
+  FILTRATION_VALUE_OPTIONS,
+  GRID_OPTIONS,
+  READER_FLAGS,
+  READER_OPTIONS,
+  STATS_OPTIONS,
+  checkedStats,
+  cohortRequest,
+  filtrationOptions,
+  gridOptions,
+  refuseProblems,
+  statsOptions,
+} from './filtration-options.ts';
 
 export const ANALYZE_HELP = `usage: loopwise analyze COHORT_DIR --out DIR [options]
 
 Computes the persistence diagrams of every subject of the cohort, then features, group-level
-filtrations and (with --group) statistics, and writes into DIR:
+filtrations and (with --group, --effect or --model) statistics, and writes into DIR:
   features.tsv     participant_id, the participants table's columns, every scalar feature
   nodes.tsv        participant_id, node, label, network, measure, value (node participation)
   networks.tsv     participant_id, network, measure, mean, nodes (when nodes.tsv names networks)
   curves.tsv       participant_id, curve, dimension, grid_value, value (Betti, landscape, Euler)
   intervals.tsv    participant_id, dimension, birth, death, nodes (an H1 cycle's nodes, 0-based,
-                   space-separated; n/a otherwise); death 'inf' for a class that never dies
+                   space-separated; NA otherwise); death inf for a class that never dies
   subjects.tsv     each subject's status (analysed, failed, excluded) and reason
   group-curves.tsv group, curve, dimension, grid_value, mean, lower, upper (bootstrap 95% band)
   group-intervals.tsv, group-nodes.tsv   the filtration of each group's mean matrix (with --group)
@@ -37,25 +49,54 @@ Finished subjects are cached (DIR/.loopwise-cache, or --cache): a run that is in
 where it stopped, and a re-run that changes only statistics settings recomputes nothing.
 
 options:
-  --out DIR             output folder (refused if it holds files, unless --force)
+  --out DIR             output folder; its manifest lists the files Loopwise owns there; the
+                        same command resumes an unfinished run (see README, The output folder)
+cohort and readers (as for 'loopwise validate'):
   --participants FILE   participants table (default COHORT_DIR/participants.tsv)
+  --nodes FILE          node table: label, network, x, y, z (default COHORT_DIR/nodes.tsv if present)
+  --time-series         the files hold region time series (time points × regions), correlated per subject
+  --correlation pearson|ledoit-wolf   estimator for --time-series (default pearson; ledoit-wolf
+                        shrinks the covariance towards a scaled identity first)
+  --variable NAME       the variable to read from .mat files
+  --file-column NAME    the participants column naming each subject's file
+  --match TEXT          only files whose name contains TEXT are matrices
+  --numeric COLS, --categorical COLS   read these participants columns as numbers / categories
+filtration:
   --input correlation|weight|distance   what the matrices hold (default correlation)
   --transform NAME      correlation: one-minus (default), one-minus-abs, sqrt
                         weight: inverse (default), neg-log; distance: identity
   --max-dim 1|2         highest homology dimension (default 1)
-  --cap-distance X      stop the filtration at distance X
+  --cap-distance X      stop the filtration at distance X (X > 0)
   --cap-density P       stop where a fraction P of all edges is present (0 < P ≤ 1)
   --no-representatives  skip H1 cycle representatives (faster)
   --drop-regions LIST   0-based region indices to leave out of every subject, e.g. 3,17
-  --group COLUMN        participants column that defines the groups (statistics)
-  --covariates LIST     participants columns to adjust for, comma-separated (statistics)
-  --permutations N      permutations of the group tests (default 5000)
-  --seed S              seed of the permutations (default 1)
+features:
+  --grid-range LO,HI    fixed range of the curves' grid: a subject's features then do not depend
+                        on the other subjects (default: the cohort's filtration range, so
+                        features are comparable only within one run)
+  --grid-points K       points of the grid (2 to 10000, default 100)
+  --floor X             intervals shorter than X are noise in the above-floor features (default 0)
+  --landscape-levels L  persistence landscape levels (0 to 100, default 3)
+statistics (see README, "Study designs"):
+  --group COLUMN        categorical column comparing its levels (same as --effect with COLUMN categorical)
+  --effect COLUMN       effect of interest: categorical (2 levels: t; more: F) or numeric (slope)
+  --model FORMULA       Wilkinson–Rogers formula, e.g. 'group*session + age' (with --test)
+  --test TERM           the model term tested, e.g. 'group:session'
+  --reference LEVEL     reference level of the categorical effect (contrast = other − reference)
+  --blocks COLUMN       exchangeability blocks, e.g. participant_id (permutations stay within them)
+  --covariates LIST     participants columns to adjust for, comma-separated
+  --permutations N      permutations of the tests (0 to 1000000, default 5000)
+  --seed S              seed of the permutations (0 to 4294967295, default 1)
+run:
   --workers K           worker threads (default: the number of cores, here ${availableParallelism()})
   --shard K/M           compute only share K of M (subjects K, K+M, K+2M, …); then 'loopwise merge DIR'
   --cache DIR           cache folder (default OUT/.loopwise-cache)
-  --force               replace Loopwise's tables in a non-empty DIR (other files are left alone)
+  --force               replace a finished run, or write beside files Loopwise did not make
+                        (a file of a table's name that Loopwise did not write is never replaced)
   --csv                 write .csv instead of .tsv
+
+exit code: 0 tables written; 1 no subject analysed; 2 usage error, unknown column, refused
+folder; 3 tables written, but the statistics asked for could not run; 130 cancelled
 `;
 
 function intList(s: string | undefined, name: string): number[] {
@@ -67,47 +108,20 @@ function intList(s: string | undefined, name: string): number[] {
   });
 }
 
-export const STATS_OPTIONS = ['group', 'covariates', 'permutations', 'seed'];
-
-/** The statistics options given (--group, --covariates, --permutations, --seed); absent ones are left out. */
-export function statsOptions(p: ParsedArgs): Partial<StatsSettings> {
-  const out: Partial<StatsSettings> = {};
-  const group = p.values.get('group');
-  if (group !== undefined) out.groupColumn = group;
-  const covariates = p.values.get('covariates');
-  if (covariates !== undefined)
-    out.covariates = covariates
-      .split(',')
-      .map((s) => s.trim())
-      .filter((s) => s !== '');
-  const permutations = numberOption(
-    p,
-    'permutations',
-    (x) => Number.isInteger(x) && x >= 0,
-    'an integer ≥ 0',
-  );
-  if (permutations !== undefined) out.permutations = permutations;
-  const seed = numberOption(p, 'seed', (x) => Number.isInteger(x), 'an integer');
-  if (seed !== undefined) out.seed = seed;
-  return out;
-}
-
 export function parseAnalyzeArgs(args: string[]): (StartRunRequest & { outDir: string }) | null {
   const p = parseArgs(args, {
     values: [
       'out',
-      'participants',
+      ...READER_OPTIONS,
       ...FILTRATION_VALUE_OPTIONS,
+      ...GRID_OPTIONS,
       'drop-regions',
-      'group',
-      'covariates',
-      'permutations',
-      'seed',
+      ...STATS_OPTIONS,
       'workers',
       'shard',
       'cache',
     ],
-    flags: ['no-representatives', 'force', 'csv', 'help'],
+    flags: ['no-representatives', 'force', 'csv', 'help', ...READER_FLAGS],
   });
   if (p.flags.has('help')) return null;
   if (p.positionals.length !== 1)
@@ -134,15 +148,13 @@ export function parseAnalyzeArgs(args: string[]): (StartRunRequest & { outDir: s
     cap,
     representatives: !p.flags.has('no-representatives'),
     dropRegions: intList(p.values.get('drop-regions'), 'drop-regions'),
+    ...gridOptions(p),
   };
-  const stats: StatsSettings = { ...defaultStatsSettings(), ...statsOptions(p) };
-  const participants = p.values.get('participants');
+  refuseProblems(validateAnalysisSettings(settings));
+  const stats = checkedStats(defaultStatsSettings(), statsOptions(p));
   return {
     // Relative to where the command is run, as a user expects (the readers resolve against the cohort folder).
-    cohort: {
-      dir: p.positionals[0],
-      ...(participants !== undefined ? { participants: resolve(participants) } : {}),
-    },
+    cohort: cohortRequest(p, p.positionals[0]),
     settings,
     stats,
     outDir: out,
@@ -227,9 +239,39 @@ export function printSummary(io: CliIO, prefix: string, s: RunSummary): void {
   io.err(lines.join('\n') + '\n');
 }
 
-export function exitCodeOf(s: RunSummary): number {
+/** The failure the service records for a stage that could not run, e.g. '(statistics)'. */
+export const STATISTICS_STAGE = '(statistics)';
+
+/**
+ * 0 tables written; 1 nothing analysed or the run failed; 3 the tables were written but the
+ * statistics asked for could not run (a script must not take a run without its statistics for a
+ * finished one); 130 cancelled.
+ */
+export function exitCodeOf(s: RunSummary, statisticsAsked = false): number {
   if (s.status === 'cancelled') return 130;
-  return s.status === 'done' && (s.analysed ?? s.computed + s.reused) > 0 ? 0 : 1;
+  const analysed = (s.analysed ?? s.computed + s.reused) > 0;
+  // A run fails as a whole when a stage fails; when the statistics stage alone failed, every other
+  // table is written, and exit 3 says exactly that.
+  const stageFailures = s.failures.filter((f) => f.subject === '' || /^\(.*\)$/.test(f.subject));
+  const onlyStatistics =
+    stageFailures.length > 0 && stageFailures.every((f) => f.subject === STATISTICS_STAGE);
+  if (s.status === 'failed' && analysed && onlyStatistics) return 3;
+  if (!(s.status === 'done' && analysed)) return 1;
+  return statisticsAsked && statisticsMissing(s) ? 3 : 0;
+}
+
+/** Statistics were asked for but did not come: the stage failed, or tables were written without stats.tsv. */
+export function statisticsMissing(s: RunSummary): boolean {
+  if (s.failures.some((f) => f.subject === STATISTICS_STAGE)) return true;
+  const files = s.files ?? [];
+  return files.length > 0 && !files.some((f) => /^stats\.(tsv|csv)$/.test(f));
+}
+
+/** The summary's line about the grid: fixed by --grid-range, or the cohort's (comparable within the run only). */
+export function gridNote(settings: AnalysisSettings): string {
+  return settings.gridRange
+    ? `  grid     fixed ${settings.gridRange[0]} to ${settings.gridRange[1]} (${settings.gridPoints} points): features comparable across runs\n`
+    : `  grid     the cohort's filtration range: features are comparable only within this run (--grid-range LO,HI fixes it)\n`;
 }
 
 export async function analyzeCommand(args: string[], io: CliIO): Promise<number> {
@@ -239,7 +281,7 @@ export async function analyzeCommand(args: string[], io: CliIO): Promise<number>
     req = parseAnalyzeArgs(args);
   } catch (e) {
     if (e instanceof UsageError) {
-      io.err(`${prefix}: ${e.message}\n${ANALYZE_HELP}`);
+      io.err(`${prefix}: ${e.message} (see loopwise analyze --help)\n`);
       return 2;
     }
     throw e;
@@ -258,8 +300,9 @@ export async function analyzeCommand(args: string[], io: CliIO): Promise<number>
     unlisten();
     await service.close();
     io.err(`${prefix}: ${e instanceof Error ? e.message : String(e)}\n`);
-    // A refused output folder, a cohort that cannot be opened, invalid settings: all input errors.
-    return 2;
+    // A refused output folder, a cohort that cannot be opened, invalid settings: all input errors;
+    // a folder that cannot take the writes (full disk, read-only) is a failed job.
+    return e instanceof Error && e.name === 'WriteError' ? 1 : 2;
   }
   let interrupts = 0;
   const onSigint = (): void => {
@@ -280,7 +323,12 @@ export async function analyzeCommand(args: string[], io: CliIO): Promise<number>
         `${prefix}: shard ${req.shard.index}/${req.shard.count} done; when all shards are, run: loopwise merge ${req.outDir}\n`,
       );
     printSummary(io, prefix, summary);
-    return exitCodeOf(summary);
+    if (summary.status === 'done' && !req.shard) io.err(gridNote(req.settings));
+    // A shard writes no tables: its statistics run at the merge.
+    const code = exitCodeOf(summary, statisticsRequested(req.stats) && !req.shard);
+    if (code === 3)
+      io.err(`${prefix}: the tables are written, but the statistics asked for could not run (exit 3)\n`);
+    return code;
   } finally {
     process.off('SIGINT', onSigint);
     unlisten();

@@ -3,15 +3,22 @@
  * object per line on stdout, in the order given. A file that cannot be read or analysed gets one
  * line on stderr naming it and the problem; the others are still computed; the exit code is then 2.
  */
-import { computePersistence } from '../engine/persistence.ts';
+import { computePersistence, estimatePersistence } from '../engine/persistence.ts';
+import type { PersistenceEstimate, PersistenceProgress } from '../engine/persistence.ts';
 import { MatrixError, toDistances } from '../engine/transform.ts';
 import type { InputKind, TransformName } from '../engine/transform.ts';
-import type { CapSetting, PersistenceResult } from '../engine/types.ts';
+import type { CapSetting, DistanceMatrix, PersistenceResult } from '../engine/types.ts';
 import { ENGINE_VERSION } from '../engine/version.ts';
 import { readMatrixFile } from '../io/read-matrix.ts';
 import type { CliIO } from '../cli.ts';
 import { UsageError, parseArgs } from './args.ts';
-import { FILTRATION_VALUE_OPTIONS, filtrationOptions } from './filtration-options.ts';
+import { validateMatrixPick } from '../contract.ts';
+import {
+  FILTRATION_VALUE_OPTIONS,
+  filtrationOptions,
+  numberText,
+  refuseProblems,
+} from './filtration-options.ts';
 
 export const DIAGRAM_HELP = `usage: loopwise diagram FILE... [options]
 
@@ -29,6 +36,10 @@ options:
   --representatives     add a cycle representative for every H1 interval
   --h0-representatives  add the merge tree with the nodes of each absorbed component
   --keep-zero           keep intervals of zero length
+  --variable NAME       the variable to read from a .mat file (needed when it holds several)
+  --stack-index K       pick matrix K of a 3-D stack (.npy or .mat, K × N × N), 0-based: the
+                        first matrix is 0
+  --progress            report progress on stderr (always on for a matrix far beyond the usual size)
 `;
 
 export interface DiagramSettings {
@@ -39,16 +50,29 @@ export interface DiagramSettings {
   representatives: boolean;
   h0Representatives: boolean;
   keepZeroLength: boolean;
+  /** The .mat variable read (--variable), when one was named. */
+  variable?: string;
+  /** The matrix picked from a 3-D stack (--stack-index), 0-based. */
+  stackIndex?: number;
 }
 
-export function parseDiagramArgs(args: string[]): { files: string[]; settings: DiagramSettings } {
+export function parseDiagramArgs(args: string[]): {
+  files: string[];
+  settings: DiagramSettings;
+  progress: boolean;
+} {
   const p = parseArgs(args, {
-    values: FILTRATION_VALUE_OPTIONS,
-    flags: ['representatives', 'h0-representatives', 'keep-zero', 'help'],
+    values: [...FILTRATION_VALUE_OPTIONS, 'variable', 'stack-index'],
+    flags: ['representatives', 'h0-representatives', 'keep-zero', 'progress', 'help'],
   });
-  if (p.flags.has('help')) return { files: [], settings: null as unknown as DiagramSettings };
+  if (p.flags.has('help')) {
+    return { files: [], settings: null as unknown as DiagramSettings, progress: false };
+  }
   if (p.positionals.length === 0) throw new UsageError('no FILE given');
   const { input, transform, maxDim, cap } = filtrationOptions(p);
+  const variable = p.values.get('variable');
+  const stackIndex = numberText(p, 'stack-index');
+  refuseProblems(validateMatrixPick({ variable, stackIndex }));
   return {
     files: p.positionals,
     settings: {
@@ -59,8 +83,69 @@ export function parseDiagramArgs(args: string[]): { files: string[]; settings: D
       representatives: p.flags.has('representatives'),
       h0Representatives: p.flags.has('h0-representatives'),
       keepZeroLength: p.flags.has('keep-zero'),
+      ...(variable !== undefined ? { variable } : {}),
+      ...(stackIndex !== undefined ? { stackIndex } : {}),
     },
+    progress: p.flags.has('progress'),
   };
+}
+
+const mega = (x: number): string => (x >= 1e6 ? `${(x / 1e6).toPrecision(3)} million` : String(x));
+
+/** The stderr line said before a computation far beyond the usual size (see estimatePersistence). */
+export function largeRunNotice(file: string, est: PersistenceEstimate): string {
+  const cols = est.columns
+    .slice(1)
+    .map((c, i) => `~${mega(c)} H${i + 1} columns`)
+    .join(', ');
+  return (
+    `loopwise diagram: ${file}: large filtration: ${est.n} nodes, ${mega(est.edges)} edges up to ` +
+    `${est.threshold}, ${cols}, at least ~${Math.ceil(est.bytes / 2 ** 20)} MiB of working memory; ` +
+    `this can take many minutes (Ctrl-C stops it)\n`
+  );
+}
+
+/**
+ * Progress lines on stderr: one when a phase starts and one each time it passes a tenth of its
+ * work. The engine calls this synchronously; stderr writes to a pipe or terminal are synchronous on Linux.
+ */
+function progressReporter(file: string, io: CliIO): (p: PersistenceProgress) => void {
+  const what = {
+    edges: 'sorting edges',
+    columns: 'listing',
+    reduction: 'reducing',
+    representatives: 'representatives',
+  };
+  let key = '';
+  let tenth = -1;
+  return (p) => {
+    const k = `${p.phase}${p.dim}`;
+    const t = p.total > 0 ? Math.floor((10 * p.done) / p.total) : 0;
+    if (k === key && t === tenth) return;
+    key = k;
+    tenth = t;
+    const unit =
+      p.phase === 'edges'
+        ? 'node pairs'
+        : p.phase === 'columns'
+          ? 'top nodes'
+          : p.phase === 'reduction'
+            ? 'columns'
+            : 'intervals';
+    const dim = p.phase === 'edges' ? '' : ` H${p.dim}`;
+    io.err(
+      `loopwise diagram: ${file}: ${what[p.phase]}${dim} ${10 * t}% (${p.done} of ${p.total} ${unit})\n`,
+    );
+  };
+}
+
+/** Reads and transforms one file; the square matrix is garbage once this returns. */
+async function readDistances(file: string, settings: DiagramSettings): Promise<DistanceMatrix> {
+  const matrix = await readMatrixFile(file, {
+    variable: settings.variable,
+    stackIndex: settings.stackIndex,
+  });
+  return toDistances(matrix, { input: settings.input, transform: settings.transform });
 }
 
 /** The JSON object printed for one file (Infinity → null). */
@@ -101,7 +186,7 @@ export async function diagramCommand(args: string[], io: CliIO): Promise<number>
     parsed = parseDiagramArgs(args);
   } catch (e) {
     if (e instanceof UsageError) {
-      io.err(`loopwise diagram: ${e.message}\n${DIAGRAM_HELP}`);
+      io.err(`loopwise diagram: ${e.message} (see loopwise diagram --help)\n`);
       return 2;
     }
     throw e;
@@ -114,9 +199,11 @@ export async function diagramCommand(args: string[], io: CliIO): Promise<number>
   let code = 0;
   for (const file of files) {
     try {
-      const matrix = await readMatrixFile(file);
-      const distances = toDistances(matrix, { input: settings.input, transform: settings.transform });
-      const result = computePersistence(distances, settings);
+      const distances = await readDistances(file, settings);
+      const estimate = estimatePersistence(distances, settings);
+      if (estimate.large) io.err(largeRunNotice(file, estimate));
+      const onProgress = parsed.progress || estimate.large ? progressReporter(file, io) : undefined;
+      const result = computePersistence(distances, settings, { onProgress });
       io.out(JSON.stringify(diagramJson(file, result, settings)) + '\n');
     } catch (e) {
       const msg =

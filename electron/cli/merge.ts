@@ -5,9 +5,18 @@
  */
 import type { StatsSettings } from '../api.ts';
 import type { CliIO } from '../cli.ts';
+import { readFile } from 'node:fs/promises';
+import { join } from 'node:path';
+import {
+  ContractError,
+  defaultStatsSettings,
+  statisticsRequested,
+  validateStatsSettings,
+} from '../contract.ts';
 import { OutDirError, createLoopwiseService } from '../service/service.ts';
 import { UsageError, parseArgs } from './args.ts';
-import { STATS_OPTIONS, exitCodeOf, printSummary, statsOptions } from './analyze.ts';
+import { exitCodeOf, printSummary } from './analyze.ts';
+import { STATS_OPTIONS, refuseProblems, statsOptions } from './filtration-options.ts';
 
 export const MERGE_HELP = `usage: loopwise merge DIR [options]
 
@@ -15,8 +24,10 @@ Combines the shard results in DIR (from 'loopwise analyze COHORT --out DIR --sha
 from 1 to M) into DIR's tables, as a single run writes them.
 
 options:
-  --group COLUMN, --covariates LIST, --permutations N, --seed S
-                the statistics to run on the merged cohort (default: those the shards were given)
+  --group COLUMN, --effect COLUMN, --model FORMULA, --test TERM, --reference LEVEL,
+  --blocks COLUMN, --covariates LIST, --permutations N, --seed S
+                the statistics to run on the merged cohort, as for 'loopwise analyze'
+                (default: those the shards were given)
   --cache DIR   the cache the shards wrote to, when it is not where they recorded it
   --force       replace Loopwise's tables already in DIR (other files are left alone)
   --csv         write .csv instead of .tsv
@@ -34,9 +45,15 @@ export async function mergeCommand(args: string[], io: CliIO): Promise<number> {
     }
     if (p.positionals.length !== 1) throw new UsageError('give exactly one DIR');
     stats = statsOptions(p);
+    // Only what was given is checked here; the merged settings are checked again by the service.
+    refuseProblems(
+      validateStatsSettings({ ...defaultStatsSettings(), ...stats }).filter(
+        (x) => x.field !== 'stats.test' && x.field !== 'stats.reference' && x.field !== 'stats.blocks',
+      ),
+    );
   } catch (e) {
     if (e instanceof UsageError) {
-      io.err(`${prefix}: ${e.message}\n${MERGE_HELP}`);
+      io.err(`${prefix}: ${e.message} (see loopwise merge --help)\n`);
       return 2;
     }
     throw e;
@@ -51,10 +68,17 @@ export async function mergeCommand(args: string[], io: CliIO): Promise<number> {
       ...(cache !== undefined ? { cacheDir: cache } : {}),
     });
     printSummary(io, prefix, summary);
-    return exitCodeOf(summary);
+    // The merged run's statistics settings (the shards' own, or those given here), as recorded.
+    const recorded = await readFile(join(summary.outDir ?? '', 'provenance.json'), 'utf8')
+      .then((t) => (JSON.parse(t) as { stats?: StatsSettings }).stats)
+      .catch(() => undefined);
+    const code = exitCodeOf(summary, recorded ? statisticsRequested(recorded) : false);
+    if (code === 3)
+      io.err(`${prefix}: the tables are written, but the statistics asked for could not run (exit 3)\n`);
+    return code;
   } catch (e) {
     io.err(`${prefix}: ${e instanceof Error ? e.message : String(e)}\n`);
-    return e instanceof OutDirError ? 2 : 1;
+    return e instanceof OutDirError || e instanceof ContractError ? 2 : 1;
   } finally {
     await service.close();
   }

@@ -2,13 +2,14 @@
  * `loopwise validate COHORT_DIR [options]`: reads every subject's matrix once and prints the QC
  * report. Exit code 0 when at least one subject is usable, 1 when none is, 2 on a usage error.
  */
-import { resolve } from 'node:path';
-import type { CohortReport, QcFinding } from '../api.ts';
+import type { CohortReport, OpenCohortRequest, QcFinding } from '../api.ts';
 import type { CliIO } from '../cli.ts';
 import type { InputKind } from '../engine/transform.ts';
 import { openCohort } from '../io/cohort.ts';
 import { InputFileError } from '../io/errors.ts';
-import { UsageError, choiceOption, parseArgs } from './args.ts';
+import { INPUT_KINDS } from '../contract.ts';
+import { UsageError, parseArgs } from './args.ts';
+import { READER_FLAGS, READER_OPTIONS, cohortRequest } from './filtration-options.ts';
 
 export const VALIDATE_HELP = `usage: loopwise validate COHORT_DIR [options]
 
@@ -21,6 +22,7 @@ options:
   --json                print the report as JSON (the CohortReport of the API)
   --input correlation|weight|distance   what the matrices hold (default correlation)
   --time-series         the files hold region time series (time points × regions)
+  --correlation pearson|ledoit-wolf   estimator for --time-series (default pearson)
   --variable NAME       the variable to read from .mat files
   --file-column NAME    the participants column naming each subject's file
   --match TEXT          only files whose name contains TEXT are matrices
@@ -31,36 +33,18 @@ options:
 exit code: 0 at least one subject is usable, 1 none is, 2 usage error
 `;
 
-const INPUTS = ['correlation', 'weight', 'distance'] as const;
-
 export interface ValidateArgs {
-  dir: string;
-  participants?: string;
-  nodes?: string;
   json: boolean;
   input: InputKind;
-  timeSeries: boolean;
-  variable?: string;
-  fileColumn?: string;
-  match?: string;
   dropRegions: number[];
-  columnKinds: Record<string, 'numeric' | 'categorical'>;
+  /** The cohort request: COHORT_DIR and the reader options, as analyze and the browser API take them. */
+  cohort: OpenCohortRequest;
 }
 
 export function parseValidateArgs(args: string[]): ValidateArgs | null {
   const p = parseArgs(args, {
-    values: [
-      'participants',
-      'nodes',
-      'input',
-      'variable',
-      'file-column',
-      'match',
-      'drop-regions',
-      'numeric',
-      'categorical',
-    ],
-    flags: ['json', 'time-series', 'help'],
+    values: [...READER_OPTIONS, 'input', 'drop-regions'],
+    flags: ['json', 'help', ...READER_FLAGS],
   });
   if (p.flags.has('help')) return null;
   if (p.positionals.length === 0) throw new UsageError('no COHORT_DIR given');
@@ -77,27 +61,14 @@ export function parseValidateArgs(args: string[]): ValidateArgs | null {
           }
           return x;
         });
-  const columnKinds: Record<string, 'numeric' | 'categorical'> = {};
-  for (const kind of ['numeric', 'categorical'] as const) {
-    for (const name of (p.values.get(kind) ?? '').split(',')) {
-      if (name.trim() === '') continue;
-      if (columnKinds[name.trim()])
-        throw new UsageError(`column '${name.trim()}' given as both numeric and categorical`);
-      columnKinds[name.trim()] = kind;
-    }
-  }
+  const input = p.values.get('input') ?? 'correlation';
+  if (!(INPUT_KINDS as readonly string[]).includes(input))
+    throw new UsageError(`--input: must be one of ${INPUT_KINDS.join(', ')}, got '${input}'`);
   return {
-    dir: p.positionals[0],
-    participants: p.values.get('participants'),
-    nodes: p.values.get('nodes'),
     json: p.flags.has('json'),
-    input: choiceOption(p, 'input', INPUTS) ?? 'correlation',
-    timeSeries: p.flags.has('time-series'),
-    variable: p.values.get('variable'),
-    fileColumn: p.values.get('file-column'),
-    match: p.values.get('match'),
+    input: input as InputKind,
     dropRegions,
-    columnKinds,
+    cohort: cohortRequest(p, p.positionals[0]),
   };
 }
 
@@ -112,7 +83,11 @@ export function formatReport(r: CohortReport): string {
   const out: string[] = [];
   out.push(`cohort ${r.root}`);
   out.push(`  regions (N): ${r.n ?? 'none readable'}`);
-  out.push(`  subjects: ${usable} usable of ${r.subjects.length}`);
+  if (r.sessions) {
+    const participants = new Set(r.subjects.map((s) => s.participant)).size;
+    out.push(`  scans: ${usable} usable of ${r.subjects.length} (${participants} participants)`);
+    out.push(`  sessions: ${r.sessions.join(', ')}`);
+  } else out.push(`  subjects: ${usable} usable of ${r.subjects.length}`);
   if (r.columns.length > 0) {
     const cols = r.columns.map(
       (c) =>
@@ -148,7 +123,7 @@ export async function validateCommand(args: string[], io: CliIO): Promise<number
     a = parseValidateArgs(args);
   } catch (e) {
     if (e instanceof UsageError) {
-      io.err(`loopwise validate: ${e.message}\n${VALIDATE_HELP}`);
+      io.err(`loopwise validate: ${e.message} (see loopwise validate --help)\n`);
       return 2;
     }
     throw e;
@@ -159,20 +134,7 @@ export async function validateCommand(args: string[], io: CliIO): Promise<number
   }
   let report: CohortReport;
   try {
-    report = await openCohort(
-      {
-        dir: a.dir,
-        // Paths on the command line are relative to the working folder, not to COHORT_DIR.
-        participants: a.participants === undefined ? undefined : resolve(a.participants),
-        nodes: a.nodes === undefined ? undefined : resolve(a.nodes),
-        variable: a.variable,
-        timeSeries: a.timeSeries,
-        fileColumn: a.fileColumn,
-        match: a.match,
-        columnKinds: a.columnKinds,
-      },
-      { input: a.input, dropRegions: a.dropRegions },
-    );
+    report = await openCohort(a.cohort, { input: a.input, dropRegions: a.dropRegions });
   } catch (e) {
     if (e instanceof InputFileError) {
       io.err(`loopwise validate: ${e.message}\n`);

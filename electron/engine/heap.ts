@@ -91,16 +91,17 @@ export class EntryHeap {
     return false;
   }
 
-  /** Empties the heap, returning its entries that survive mod-2 cancellation, in heap order. */
-  drain(): { values: number[]; indices: number[] } {
-    const values: number[] = [];
-    const indices: number[] = [];
+  /** Empties the heap into a new array of the indices that survive mod-2 cancellation, in heap order. */
+  drainIndices(): Float64Array {
+    // Popped entries go to the tail of the index array, which the pops have just freed.
+    const x = this.x;
+    let end = this.v.length;
     while (this.settle()) {
-      values.push(this.v[0]);
-      indices.push(this.x[0]);
+      const top = x[0];
       this.pop();
+      x[--end] = top;
     }
-    return { values, indices };
+    return x.slice(end).reverse();
   }
 
   private grow(): void {

@@ -20,7 +20,7 @@
  */
 import { EntryHeap } from './heap.ts';
 import { IndexMap } from './index-map.ts';
-import { stableOrder } from './radix.ts';
+import { sortByValue, stableOrder } from './radix.ts';
 import type {
   CycleRepresentative,
   DistanceMatrix,
@@ -37,6 +37,47 @@ export const DEFAULT_PERSISTENCE_OPTIONS: PersistenceOptions = {
   h0Representatives: false,
   keepZeroLength: false,
 };
+
+/** Where a running computation is: `done` of `total` units (edges, columns, top vertices, pairs) of one phase. */
+export interface PersistenceProgress {
+  phase: 'edges' | 'columns' | 'reduction' | 'representatives';
+  /** Homology dimension of the phase (0 for the edges). */
+  dim: number;
+  done: number;
+  total: number;
+}
+
+/** Progress reports and cancellation for a long computation; both are polled every `every` units of work. */
+export interface PersistenceControl {
+  onProgress?: (p: PersistenceProgress) => void;
+  /** Returns true to stop: the computation then throws a PersistenceCancelledError. */
+  isCancelled?: () => boolean;
+  /** Units of work (columns, added columns, …) between two polls; default 16384. */
+  every?: number;
+}
+
+/** Thrown by computePersistence when its control's isCancelled() returned true. */
+export class PersistenceCancelledError extends Error {
+  constructor() {
+    super('persistence computation cancelled');
+    this.name = 'PersistenceCancelledError';
+  }
+}
+
+class Watch {
+  readonly every: number;
+  private readonly control: PersistenceControl;
+  constructor(control: PersistenceControl) {
+    this.control = control;
+    this.every = Math.max(1, Math.floor(control.every ?? 16384));
+  }
+
+  /** Reports progress, then stops the run if cancelled. */
+  poll(phase: PersistenceProgress['phase'], dim: number, done: number, total: number): void {
+    this.control.onProgress?.({ phase, dim, done, total });
+    if (this.control.isCancelled?.()) throw new PersistenceCancelledError();
+  }
+}
 
 /** Binomial coefficients C(v, k) for v ≤ n, k ≤ kMax, as a flat table: table[k * (n + 1) + v]. */
 function binomialTable(n: number, kMax: number): Float64Array {
@@ -78,32 +119,24 @@ export function densityThreshold(d: DistanceMatrix, density: number): number {
   return sorted[k - 1];
 }
 
-/**
- * The persistence diagrams (and optionally cycle representatives) of the clique filtration.
- *
- *   computePersistence(distancesFromRows([[0,1,2,1],[1,0,1,2],[2,1,0,1],[1,2,1,0]]), {maxDim: 1})
- *   → diagrams[1] = [{birth: 1, death: 2}]   (a square with diagonals 2: one loop)
- */
-export function computePersistence(
+/** Checks the distances and picks the threshold of the filtration (the cap, or the enclosing radius). */
+function filtrationThreshold(
   d: DistanceMatrix,
-  opts: Partial<PersistenceOptions> = {},
-): PersistenceResult {
-  const options: PersistenceOptions = { ...DEFAULT_PERSISTENCE_OPTIONS, ...opts };
+  options: PersistenceOptions,
+): Pick<PersistenceResult, 'threshold' | 'thresholdSource'> {
   const { n } = d;
   if (d.values.length !== (n * (n - 1)) / 2) {
     throw new RangeError(
       `distance array has ${d.values.length} entries, expected ${(n * (n - 1)) / 2} for n = ${n}`,
     );
   }
+  // Edge indices are kept as 32-bit integers.
+  if (d.values.length > 0xffffffff) throw new RangeError(`n = ${n} nodes is more than the engine handles`);
   for (let k = 0; k < d.values.length; k++) {
     const x = d.values[k];
     if (!(x >= 0)) throw new RangeError(`distance ${x} at compressed index ${k} is negative or missing`);
   }
-
-  // Threshold.
   const radius = enclosingRadius(d);
-  let threshold: number;
-  let thresholdSource: PersistenceResult['thresholdSource'];
   const capValue =
     options.cap.kind === 'distance'
       ? options.cap.value
@@ -111,22 +144,106 @@ export function computePersistence(
         ? densityThreshold(d, options.cap.value)
         : Infinity;
   if (capValue < radius) {
-    threshold = capValue;
-    thresholdSource = options.cap.kind === 'density' ? 'density-cap' : 'distance-cap';
-  } else if (Number.isFinite(radius)) {
-    // Beyond the enclosing radius nothing changes in dimensions ≥ 1 and H0 is connected.
-    threshold = radius;
-    thresholdSource = 'enclosing-radius';
-  } else {
-    threshold = Infinity;
-    thresholdSource = 'all-finite-edges';
+    return {
+      threshold: capValue,
+      thresholdSource: options.cap.kind === 'density' ? 'density-cap' : 'distance-cap',
+    };
   }
+  // Beyond the enclosing radius nothing changes in dimensions ≥ 1 and H0 is connected.
+  if (Number.isFinite(radius)) return { threshold: radius, thresholdSource: 'enclosing-radius' };
+  return { threshold: Infinity, thresholdSource: 'all-finite-edges' };
+}
+
+/** What a computation will take, known before it starts (see estimatePersistence). */
+export interface PersistenceEstimate {
+  n: number;
+  threshold: number;
+  /** Edges in the filtration (distance ≤ threshold). */
+  edges: number;
+  /** Estimated columns to reduce per dimension 1 … maxDim (index 0 unused, 0): H1 exactly edges − (n − 1) at most; H2 from a sample of node triples. */
+  columns: number[];
+  /** Estimated bytes of the engine's own arrays (dense distances, edges, columns, pivot tables), not counting stored reductions. */
+  bytes: number;
+  /** Far beyond a usual subject (about a thousand nodes, H0–H1): worth a warning before starting. */
+  large: boolean;
+}
+
+/** Above these a computation is `large`: about 1700 nodes in H1, or 10⁷ columns or 1.5 GB in any case. */
+export const LARGE_EDGES = 1_500_000;
+export const LARGE_COLUMNS = 10_000_000;
+export const LARGE_BYTES = 1.5 * 2 ** 30;
+
+/**
+ * The size of computePersistence(d, opts) before running it: edges below the threshold exactly,
+ * columns estimated, memory of the fixed arrays. Linear in the number of node pairs.
+ *
+ *   estimatePersistence(d, {maxDim: 1}) → {n: 3000, edges: 4.4e6, columns: [0, 4.4e6], bytes: 2.6e8, large: true, …}
+ */
+export function estimatePersistence(
+  d: DistanceMatrix,
+  opts: Partial<PersistenceOptions> = {},
+): PersistenceEstimate {
+  const options: PersistenceOptions = { ...DEFAULT_PERSISTENCE_OPTIONS, ...opts };
+  const { n, values } = d;
+  const { threshold } = filtrationThreshold(d, options);
+  let edges = 0;
+  for (let k = 0; k < values.length; k++) if (values[k] <= threshold) edges++;
+  const columns = [0, Math.max(0, edges - (n - 1))];
+  // Bytes per column: index and diameter (16), pivot-table slot at load ≤ 1/2 (≥ 24).
+  let bytes = 8 * n * n + 9 * edges + 40 * columns[1];
+  if (options.maxDim >= 2 && n >= 3) {
+    // Triangles below the threshold, from a fixed sample of node triples.
+    const samples = 20000;
+    let inside = 0;
+    let state = 0x9e3779b9;
+    const next = (): number => {
+      state = (Math.imul(state ^ (state >>> 15), 0x2c1b3c6d) + 0x6d2b79f5) >>> 0;
+      return state / 4294967296;
+    };
+    for (let s = 0; s < samples; s++) {
+      const i = Math.floor(next() * n);
+      const j = Math.floor(next() * n);
+      const k = Math.floor(next() * n);
+      if (i === j || j === k || i === k) {
+        s--;
+        continue;
+      }
+      const dij = values[i > j ? (i * (i - 1)) / 2 + j : (j * (j - 1)) / 2 + i];
+      const dik = values[i > k ? (i * (i - 1)) / 2 + k : (k * (k - 1)) / 2 + i];
+      const djk = values[j > k ? (j * (j - 1)) / 2 + k : (k * (k - 1)) / 2 + j];
+      if (dij <= threshold && dik <= threshold && djk <= threshold) inside++;
+    }
+    const triangles = Math.round(((n * (n - 1) * (n - 2)) / 6) * (inside / samples));
+    columns.push(Math.max(0, triangles - columns[1]));
+    bytes += 40 * columns[2] + 16 * triangles;
+  }
+  const large = edges > LARGE_EDGES || columns.some((c) => c > LARGE_COLUMNS) || bytes > LARGE_BYTES;
+  return { n, threshold, edges, columns, bytes, large };
+}
+
+/**
+ * The persistence diagrams (and optionally cycle representatives) of the clique filtration.
+ * `control` reports progress and can cancel (a PersistenceCancelledError).
+ *
+ *   computePersistence(distancesFromRows([[0,1,2,1],[1,0,1,2],[2,1,0,1],[1,2,1,0]]), {maxDim: 1})
+ *   → diagrams[1] = [{birth: 1, death: 2}]   (a square with diagonals 2: one loop)
+ */
+export function computePersistence(
+  d: DistanceMatrix,
+  opts: Partial<PersistenceOptions> = {},
+  control: PersistenceControl = {},
+): PersistenceResult {
+  const options: PersistenceOptions = { ...DEFAULT_PERSISTENCE_OPTIONS, ...opts };
+  const { n } = d;
+  const { threshold, thresholdSource } = filtrationThreshold(d, options);
+  const watch = new Watch(control);
 
   const ctx = new Context(d, options.maxDim + 2, threshold);
   const diagrams: Interval[][] = [];
   for (let dim = 0; dim <= options.maxDim; dim++) diagrams.push([]);
 
   // H0 by union-find over edges in filtration order (Kruskal).
+  watch.poll('edges', 0, 0, d.values.length);
   const edges = ctx.sortedEdges(); // ascending filtration order
   const h0 = unionFind(ctx, edges, options.h0Representatives);
   for (const ev of h0.mergeTree) {
@@ -135,40 +252,34 @@ export function computePersistence(
   for (let c = 0; c < h0.components; c++) diagrams[0].push({ birth: 0, death: Infinity });
 
   // Columns of dimension 1: edges that did not merge components (clearing), in reverse filtration order.
-  const m = edges.count;
-  let colIdx: Float64Array = new Float64Array(m - h0.mergeTree.length);
-  let colDiam: Float64Array = new Float64Array(colIdx.length);
+  const m = edges.length;
+  let cols: Columns = {
+    idx: new Float64Array(m - h0.mergeTree.length),
+    diam: new Float64Array(m - h0.mergeTree.length),
+  };
   for (let e = m - 1, c = 0; e >= 0; e--) {
     if (h0.isMstEdge[e]) continue;
-    colIdx[c] = edges.idx[e];
-    colDiam[c++] = edges.diam[e];
+    cols.idx[c] = edges[e];
+    cols.diam[c++] = ctx.values[edges[e]];
   }
 
-  const columnsReduced: number[] = [edges.count];
+  const columnsReduced: number[] = [m];
   const apparentPairs: number[] = [0];
-  let h1Pairs: PairList | null = null;
+  let h1: { cols: Columns; red: Reduction } | null = null;
   for (let dim = 1; dim <= options.maxDim; dim++) {
-    const red = reduceCohomology(ctx, dim, colIdx, colDiam);
-    columnsReduced.push(colIdx.length);
+    const red = reduceCohomology(ctx, dim, cols, options.keepZeroLength, watch);
+    columnsReduced.push(cols.idx.length);
     apparentPairs.push(red.apparent);
     for (let p = 0; p < red.pairs.count; p++) {
-      const b = red.pairs.birthDiam[p];
-      const dd = red.pairs.deathDiam[p];
-      if (dd > b || options.keepZeroLength) diagrams[dim].push({ birth: b, death: dd });
+      diagrams[dim].push({ birth: red.pairs.birthDiam[p], death: red.pairs.deathDiam[p] });
     }
-    if (dim === 1) {
-      h1Pairs = red.pairs;
-    }
-    if (dim < options.maxDim) {
-      const next = ctx.simplicesAbove(dim, red.pivotOf);
-      colIdx = next.idx;
-      colDiam = next.diam;
-    }
+    if (dim === 1) h1 = { cols, red };
+    if (dim < options.maxDim) cols = ctx.simplicesAbove(dim, red.pivotOf, watch);
   }
 
   let representatives: CycleRepresentative[] | undefined;
-  if (options.representatives && h1Pairs) {
-    representatives = cycleRepresentatives(ctx, h1Pairs, edges, h0.isMstEdge, options.keepZeroLength);
+  if (options.representatives && h1) {
+    representatives = cycleRepresentatives(ctx, h1.cols, h1.red, edges, h0.isMstEdge, watch);
     representatives.sort(byInterval);
   }
   for (const dg of diagrams) dg.sort(byInterval);
@@ -180,7 +291,7 @@ export function computePersistence(
     diagrams,
     representatives,
     mergeTree: h0.mergeTree,
-    counts: { edges: edges.count, columnsReduced, apparentPairs },
+    counts: { edges: m, columnsReduced, apparentPairs },
   };
 }
 
@@ -188,10 +299,22 @@ function byInterval(a: Interval, b: Interval): number {
   return a.birth - b.birth || (a.death === b.death ? 0 : a.death < b.death ? -1 : 1);
 }
 
-/** Shared lookups: dense distances, binomials, vertex decoding, coface enumeration. */
+/** Simplices to reduce, in reverse filtration order: combinatorial index and diameter. */
+interface Columns {
+  idx: Float64Array;
+  diam: Float64Array;
+}
+
+/**
+ * Shared lookups: distances, binomials, vertex decoding. The caller's compressed lower triangle
+ * serves edge diameters (d(i, j) for i > j is values[row(i) + j]); the coface scan reads a dense
+ * n × n copy, whose row of a vertex is contiguous in w (measured 30% faster at n = 1000 than the
+ * strided column reads of the compressed triangle, for 8n² bytes).
+ */
 class Context {
   readonly n: number;
-  readonly dist: Float64Array; // n × n, dense, for fast lookups in the hot loops
+  readonly values: Float64Array; // the diameter of edge e is values[e]
+  readonly dist: Float64Array; // n × n, dense: dist[a * n + w] = d(a, w)
   readonly binom: Float64Array;
   readonly threshold: number;
   private readonly stride: number;
@@ -199,6 +322,7 @@ class Context {
   constructor(d: DistanceMatrix, kMax: number, threshold: number) {
     const { n, values } = d;
     this.n = n;
+    this.values = values;
     // Internally an infinite threshold becomes the largest finite double, so that absent
     // edges (+∞) stay out of the filtration while every finite edge enters.
     this.threshold = Number.isFinite(threshold) ? threshold : Number.MAX_VALUE;
@@ -212,6 +336,11 @@ class Context {
         this.dist[j * n + i] = values[k];
       }
     }
+  }
+
+  /** Where row i of the compressed lower triangle starts: d(i, j) = values[row(i) + j] for j < i. */
+  row(i: number): number {
+    return (i * (i - 1)) / 2;
   }
 
   choose(v: number, k: number): number {
@@ -237,28 +366,20 @@ class Context {
     }
   }
 
-  /** Edges with distance ≤ threshold, in filtration order (distance ascending, index descending). */
-  sortedEdges(): EdgeList {
-    const { n, dist, threshold } = this;
+  /**
+   * Edges with distance ≤ threshold, in filtration order (distance ascending, index descending),
+   * as edge indices; an edge's index is its position in the compressed lower triangle.
+   */
+  sortedEdges(): Uint32Array {
+    const { values, threshold } = this;
     let count = 0;
-    for (let i = 0; i < n; i++) for (let j = 0; j < i; j++) if (dist[i * n + j] <= threshold) count++;
+    for (let e = 0; e < values.length; e++) if (values[e] <= threshold) count++;
     // Collected in index-descending order, so that a stable sort by diameter yields the
     // filtration order (diameter ascending, index descending).
-    const idx = new Float64Array(count);
-    const diam = new Float64Array(count);
-    let c = 0;
-    for (let i = n - 1; i >= 1; i--) {
-      const base = (i * (i - 1)) / 2;
-      for (let j = i - 1; j >= 0; j--) {
-        const x = dist[i * n + j];
-        if (x <= threshold) {
-          idx[c] = base + j;
-          diam[c++] = x;
-        }
-      }
-    }
-    const order = stableOrder(diam);
-    return { count, idx: permute(idx, order), diam: permute(diam, order) };
+    const edges = new Uint32Array(count);
+    for (let e = values.length - 1, c = 0; e >= 0; e--) if (values[e] <= threshold) edges[c++] = e;
+    sortByValue(edges, values);
+    return edges;
   }
 
   /**
@@ -267,8 +388,8 @@ class Context {
    * Each simplex is enumerated once, its vertices chosen largest first, pruning a prefix whose
    * diameter already exceeds the threshold.
    */
-  simplicesAbove(dim: number, pivots: IndexMap): { idx: Float64Array; diam: Float64Array } {
-    const { n, dist, threshold } = this;
+  simplicesAbove(dim: number, pivots: IndexMap, watch: Watch): Columns {
+    const { n, values, threshold } = this;
     const k = dim + 1; // vertices of a dim-simplex
     let idxOut = new Float64Array(1 << 12);
     let diamOut = new Float64Array(1 << 12);
@@ -279,9 +400,10 @@ class Context {
     const enumerate = (depth: number, top: number, diamSoFar: number, idxSoFar: number): void => {
       const remaining = k - depth; // vertices still to choose below this one
       for (let v = top; v >= remaining; v--) {
+        if (depth === 0) watch.poll('columns', dim + 1, n - 1 - v, n);
         let dm = diamSoFar;
         for (let q = 0; q < depth; q++) {
-          const x = dist[stack[q] * n + v];
+          const x = values[this.row(stack[q]) + v]; // stack[q] > v
           if (x > dm) dm = x;
         }
         if (dm > threshold) continue;
@@ -306,25 +428,17 @@ class Context {
       }
     };
     enumerate(0, n - 1, 0, 0);
-    const idx = idxOut.subarray(0, count);
     const diam = diamOut.subarray(0, count);
     const order = stableOrder(diam);
     // Reverse filtration order: diameter descending, index ascending.
     order.reverse();
-    return { idx: permute(idx, order), diam: permute(diam, order) };
+    const out: Columns = { idx: new Float64Array(count), diam: new Float64Array(count) };
+    for (let i = 0; i < count; i++) {
+      out.idx[i] = idxOut[order[i]];
+      out.diam[i] = diamOut[order[i]];
+    }
+    return out;
   }
-}
-
-interface EdgeList {
-  count: number;
-  idx: Float64Array;
-  diam: Float64Array;
-}
-
-function permute(a: Float64Array, order: Uint32Array): Float64Array {
-  const out = new Float64Array(a.length);
-  for (let i = 0; i < order.length; i++) out[i] = a[order[i]];
-  return out;
 }
 
 interface UnionFindResult {
@@ -334,7 +448,7 @@ interface UnionFindResult {
 }
 
 /** H0: Kruskal over edges in filtration order; the component holding the smaller node survives. */
-function unionFind(ctx: Context, edges: EdgeList, keepNodes: boolean): UnionFindResult {
+function unionFind(ctx: Context, edges: Uint32Array, keepNodes: boolean): UnionFindResult {
   const n = ctx.n;
   const parent = new Int32Array(n);
   const minNode = new Int32Array(n);
@@ -347,20 +461,21 @@ function unionFind(ctx: Context, edges: EdgeList, keepNodes: boolean): UnionFind
     }
     return x;
   };
-  const isMstEdge = new Uint8Array(edges.count);
+  const isMstEdge = new Uint8Array(edges.length);
   const mergeTree: MergeEvent[] = [];
   const vs = new Int32Array(2);
   let components = n;
-  for (let e = 0; e < edges.count && components > 1; e++) {
-    ctx.vertices(edges.idx[e], 2, vs);
+  for (let e = 0; e < edges.length && components > 1; e++) {
+    ctx.vertices(edges[e], 2, vs);
     const a = find(vs[0]);
     const b = find(vs[1]);
     if (a === b) continue;
     isMstEdge[e] = 1;
     components--;
-    const [win, lose] = minNode[a] < minNode[b] ? [a, b] : [b, a];
+    const win = minNode[a] < minNode[b] ? a : b;
+    const lose = win === a ? b : a;
     const ev: MergeEvent = {
-      value: edges.diam[e],
+      value: ctx.values[edges[e]],
       edge: [vs[0], vs[1]],
       survivor: minNode[win],
       absorbed: minNode[lose],
@@ -383,13 +498,43 @@ function unionFind(ctx: Context, edges: EdgeList, keepNodes: boolean): UnionFind
   return { mergeTree, isMstEdge, components };
 }
 
-/** Persistence pairs of one dimension, as simplex indices and diameters; death = Infinity when essential. */
-interface PairList {
-  count: number;
-  birthIdx: Float64Array;
-  birthDiam: Float64Array;
-  deathIdx: Float64Array;
-  deathDiam: Float64Array;
+/**
+ * The intervals of one dimension that go into the diagram (positive length, or all with
+ * keepZeroLength), as simplex indices and diameters; death = Infinity (index −1) when essential.
+ * Growable typed arrays: zero-length pairs, the vast majority, are counted but not stored.
+ */
+class PairList {
+  count = 0;
+  birthIdx: Float64Array = new Float64Array(256);
+  birthDiam: Float64Array = new Float64Array(256);
+  deathIdx: Float64Array = new Float64Array(256);
+  deathDiam: Float64Array = new Float64Array(256);
+
+  add(bi: number, bd: number, di: number, dd: number): void {
+    if (this.count === this.birthIdx.length) {
+      const grow = (a: Float64Array): Float64Array => {
+        const b = new Float64Array(2 * a.length);
+        b.set(a);
+        return b;
+      };
+      this.birthIdx = grow(this.birthIdx);
+      this.birthDiam = grow(this.birthDiam);
+      this.deathIdx = grow(this.deathIdx);
+      this.deathDiam = grow(this.deathDiam);
+    }
+    const p = this.count++;
+    this.birthIdx[p] = bi;
+    this.birthDiam[p] = bd;
+    this.deathIdx[p] = di;
+    this.deathDiam[p] = dd;
+  }
+}
+
+interface Reduction {
+  pairs: PairList;
+  /** Every pair of finite death, zero length included: pivot (coface index) → column position. */
+  pivotOf: IndexMap;
+  apparent: number;
 }
 
 /**
@@ -397,52 +542,45 @@ interface PairList {
  * order; a column's entries are its cofaces (never stored: enumerated from the vertices);
  * its pivot is its earliest coface. Reduction adds earlier columns with the same pivot;
  * what is stored per column is only its reduction (which simplices were added), as in Ripser.
+ * Nothing is allocated per column: two heaps and the stores are reused and grow by doubling.
  */
 function reduceCohomology(
   ctx: Context,
   dim: number,
-  colIdx: Float64Array,
-  colDiam: Float64Array,
-): { pairs: PairList; pivotOf: IndexMap; apparent: number } {
-  const { n, dist, threshold } = ctx;
+  cols: Columns,
+  keepZeroLength: boolean,
+  watch: Watch,
+): Reduction {
+  const { n, threshold, dist } = ctx;
+  const { idx: colIdx, diam: colDiam } = cols;
+  const total = colIdx.length;
   const k = dim + 1; // vertices of a column simplex
-  const pivotOf = new IndexMap(colIdx.length); // pivot (coface index) → column position
-  // Stored reductions: for column c, the simplices added to it (besides itself), as a slice of vStore.
-  const vStart = new Int32Array(colIdx.length).fill(-1);
-  const vLen = new Int32Array(colIdx.length);
+  const pivotOf = new IndexMap(total);
+  // Stored reductions: column c → start in vIdx/vDiam of the simplices added to it (besides
+  // itself), ended by an index of −1. Only columns that needed additions have one.
+  const reductionOf = new IndexMap(1024);
   let vIdx = new Float64Array(1024);
   let vDiam = new Float64Array(1024);
   let vUsed = 0;
-
-  // Each column yields at most one pair.
-  const pairs: PairList = {
-    count: 0,
-    birthIdx: new Float64Array(colIdx.length),
-    birthDiam: new Float64Array(colIdx.length),
-    deathIdx: new Float64Array(colIdx.length),
-    deathDiam: new Float64Array(colIdx.length),
-  };
-  const addPair = (bi: number, bd: number, di: number, dd: number): void => {
-    const p = pairs.count++;
-    pairs.birthIdx[p] = bi;
-    pairs.birthDiam[p] = bd;
-    pairs.deathIdx[p] = di;
-    pairs.deathDiam[p] = dd;
-  };
-  const heap = new EntryHeap();
+  const pairs = new PairList();
+  const coboundary = new EntryHeap(); // the working column: cofaces of the simplices added
+  const added = new EntryHeap(256); // the simplices added, mod 2 once drained
   const vs = new Int32Array(k);
-  const workIdx: number[] = [];
-  const workDiam: number[] = [];
   let apparent = 0;
 
+  // Simplices are passed as (array, position), and a found coface comes back in found[0]: a double
+  // passed to or returned from a call that is not inlined is boxed, a heap allocation per column.
+  const found = new Float64Array(1);
   /**
-   * Pushes every coface of simplex (idx, diam) with diameter ≤ threshold, enumerated in decreasing
-   * index (w descending). With `emergentCheck`, the first coface of the simplex's own diameter is,
-   * among the cofaces of least diameter, the one of largest index: the column's pivot before any
-   * reduction. If no earlier column holds that pivot, the reduction stops at once (an emergent
-   * pair, of zero length): the enumeration stops and that coface is returned. Otherwise −1.
+   * Cofaces of simplex src[at] (diameter srcDiam[at]) with diameter ≤ threshold, enumerated in
+   * decreasing index (w descending). Pushes them all onto the working column; or, with
+   * `findFirst`, pushes nothing and stops at the first of the simplex's own diameter (into
+   * found[0], returning true): among the cofaces of least diameter the one of largest index, the
+   * column's pivot before any reduction.
    */
-  const pushCofaces = (idx: number, diam: number, emergentCheck: boolean): number => {
+  const scanCofaces = (src: Float64Array, srcDiam: Float64Array, at: number, findFirst: boolean): boolean => {
+    const idx = src[at];
+    const diam = srcDiam[at];
     ctx.vertices(idx, k, vs);
     let above = 0;
     let below = idx;
@@ -461,83 +599,84 @@ function reduceCohomology(
       }
       if (dm > threshold) continue;
       const cof = above + ctx.choose(w, k - j + 1) + below;
-      if (emergentCheck && dm === diam) {
-        if (!pivotOf.has(cof)) return cof;
-        emergentCheck = false;
+      if (!findFirst) {
+        coboundary.push(dm, cof);
+      } else if (dm === diam) {
+        found[0] = cof;
+        return true;
       }
-      heap.push(dm, cof);
     }
-    return -1;
+    return false;
+  };
+  /** Adds simplex src[at] to the working reduction and its coboundary to the working column. */
+  const add = (src: Float64Array, srcDiam: Float64Array, at: number): void => {
+    added.push(srcDiam[at], src[at]);
+    scanCofaces(src, srcDiam, at, false);
+  };
+  const keep = (bi: number, bd: number, di: number, dd: number): void => {
+    if (dd > bd || keepZeroLength) pairs.add(bi, bd, di, dd);
   };
 
-  for (let c = 0; c < colIdx.length; c++) {
-    const sIdx = colIdx[c];
-    const sDiam = colDiam[c];
-    heap.clear();
-    const emergent = pushCofaces(sIdx, sDiam, true);
-    if (emergent >= 0) {
-      pivotOf.set(emergent, c);
-      addPair(sIdx, sDiam, emergent, sDiam);
+  /** Stores column c's reduction mod 2 (equal simplices cancel in pairs in the heap), ended by −1. */
+  const storeReduction = (c: number): void => {
+    const start = vUsed;
+    while (added.settle()) {
+      if (vUsed + 2 > vIdx.length) {
+        const ni = new Float64Array(2 * vIdx.length);
+        const nd = new Float64Array(2 * vIdx.length);
+        ni.set(vIdx);
+        nd.set(vDiam);
+        vIdx = ni;
+        vDiam = nd;
+      }
+      vIdx[vUsed] = added.topIndex();
+      vDiam[vUsed++] = added.topValue();
+      added.pop();
+    }
+    if (vUsed === start) return;
+    vIdx[vUsed++] = -1;
+    reductionOf.set(c, start);
+  };
+
+  for (let c = 0; c < total; c++) {
+    if (c % watch.every === 0) watch.poll('reduction', dim, c, total);
+    // Shortcut 1 (emergent pair): the column's first coface is nobody's pivot yet; found by a
+    // scan that stops there, before any coface is pushed. The pair has length zero.
+    if (scanCofaces(colIdx, colDiam, c, true) && !pivotOf.has(found[0])) {
+      pivotOf.set(found[0], c);
+      if (keepZeroLength) pairs.add(colIdx[c], colDiam[c], found[0], colDiam[c]);
       apparent++;
       continue;
     }
-
-    workIdx.length = 0;
-    workDiam.length = 0;
+    const sIdx = colIdx[c];
+    const sDiam = colDiam[c];
+    coboundary.clear();
+    added.clear();
+    scanCofaces(colIdx, colDiam, c, false);
     let paired = false;
-    while (heap.settle()) {
-      const p = heap.topIndex();
+    let additions = 0;
+    while (coboundary.settle()) {
+      const p = coboundary.topIndex();
       const other = pivotOf.get(p);
       if (other === -1) {
         pivotOf.set(p, c);
-        addPair(sIdx, sDiam, p, heap.topValue());
+        keep(sIdx, sDiam, p, coboundary.topValue());
         paired = true;
         break;
       }
       // Add column `other`: its own coboundary and those of the simplices in its reduction.
-      workIdx.push(colIdx[other]);
-      workDiam.push(colDiam[other]);
-      pushCofaces(colIdx[other], colDiam[other], false);
-      const s = vStart[other];
-      for (let t = 0; t < vLen[other]; t++) {
-        workIdx.push(vIdx[s + t]);
-        workDiam.push(vDiam[s + t]);
-        pushCofaces(vIdx[s + t], vDiam[s + t], false);
-      }
+      add(colIdx, colDiam, other);
+      for (let s = reductionOf.get(other); s >= 0 && vIdx[s] >= 0; s++) add(vIdx, vDiam, s);
+      // A single column can take long: poll within it too.
+      if (++additions % watch.every === 0) watch.poll('reduction', dim, c, total);
     }
     if (!paired) {
-      addPair(sIdx, sDiam, -1, Infinity);
-    } else if (workIdx.length > 0) {
-      // Store the reduction mod 2: sort by index and drop pairs.
-      const order = workIdx.map((_, i) => i).sort((a, b) => workIdx[a] - workIdx[b]);
-      const keepIdx: number[] = [];
-      const keepDiam: number[] = [];
-      for (let i = 0; i < order.length;) {
-        let r = i + 1;
-        while (r < order.length && workIdx[order[r]] === workIdx[order[i]]) r++;
-        if ((r - i) % 2 === 1) {
-          keepIdx.push(workIdx[order[i]]);
-          keepDiam.push(workDiam[order[i]]);
-        }
-        i = r;
-      }
-      if (keepIdx.length > 0) {
-        if (vUsed + keepIdx.length > vIdx.length) {
-          const cap = Math.max(vIdx.length * 2, vUsed + keepIdx.length);
-          const ni = new Float64Array(cap);
-          const nd = new Float64Array(cap);
-          ni.set(vIdx.subarray(0, vUsed));
-          nd.set(vDiam.subarray(0, vUsed));
-          vIdx = ni;
-          vDiam = nd;
-        }
-        vStart[c] = vUsed;
-        vLen[c] = keepIdx.length;
-        vIdx.set(keepIdx, vUsed);
-        vDiam.set(keepDiam, vUsed);
-        vUsed += keepIdx.length;
-      }
+      keep(sIdx, sDiam, -1, Infinity);
+      continue;
     }
+    // Shortcut 2 (nothing to store): a column that needed no additions has an empty reduction.
+    if (additions === 0) continue;
+    storeReduction(c);
   }
   return { pairs, pivotOf, apparent };
 }
@@ -555,41 +694,33 @@ function reduceCohomology(
  */
 function cycleRepresentatives(
   ctx: Context,
-  pairs: PairList,
-  edges: EdgeList,
+  cols: Columns,
+  red: Reduction,
+  edges: Uint32Array,
   isMstEdge: Uint8Array,
-  keepZeroLength: boolean,
+  watch: Watch,
 ): CycleRepresentative[] {
-  const { n, dist } = ctx;
+  const { n, values } = ctx;
+  const { pairs } = red;
   // partner: birth edge → death triangle, for every pair of dimension 1 (zero length included).
-  const deathOfEdge = new Float64Array((n * (n - 1)) / 2).fill(-1);
-  for (let p = 0; p < pairs.count; p++) {
-    if (pairs.deathIdx[p] >= 0) deathOfEdge[pairs.birthIdx[p]] = pairs.deathIdx[p];
-  }
+  const deathOfEdge = new Float64Array(values.length).fill(-1);
+  red.pivotOf.forEach((tri, c) => {
+    deathOfEdge[cols.idx[c]] = tri;
+  });
   const memo = new Map<number, Float64Array>(); // triangle → reduced column (edge indices)
   const heaps: EntryHeap[] = [];
   const tv = new Int32Array(3);
 
-  const edgeDiam = (e: number): number => {
-    // e = C(i, 2) + j with i > j
-    let i = Math.floor((1 + Math.sqrt(1 + 8 * e)) / 2);
-    while ((i * (i - 1)) / 2 > e) i--;
-    while (((i + 1) * i) / 2 <= e) i++;
-    const j = e - (i * (i - 1)) / 2;
-    return dist[i * n + j];
+  // Latest edge first: the heap orders by (−diam, −index), i.e. diam descending, index ascending.
+  const pushEdge = (heap: EntryHeap, p: number, q: number): void => {
+    const e = ctx.row(p) + q;
+    heap.push(-values[e], -e);
   };
   const pushBoundary = (heap: EntryHeap, tri: number): void => {
     ctx.vertices(tri, 3, tv);
-    const [a, b, c] = [tv[0], tv[1], tv[2]];
-    // Latest edge first: the heap orders by (−diam, −index), i.e. diam descending, index ascending.
-    for (const [p, q] of [
-      [a, b],
-      [a, c],
-      [b, c],
-    ]) {
-      const e = (p * (p - 1)) / 2 + q;
-      heap.push(-dist[p * n + q], -e);
-    }
+    pushEdge(heap, tv[0], tv[1]);
+    pushEdge(heap, tv[0], tv[2]);
+    pushEdge(heap, tv[1], tv[2]);
   };
 
   const reduced = (tri: number, partner: number, depth: number): Float64Array => {
@@ -606,11 +737,11 @@ function cycleRepresentatives(
       const earlier = deathOfEdge[low];
       if (earlier < 0) throw new Error(`internal: edge ${low} has no partner while reducing triangle ${tri}`);
       const col = reduced(earlier, low, depth + 1);
-      for (let t = 0; t < col.length; t++) heap.push(-edgeDiam(col[t]), -col[t]);
+      for (let t = 0; t < col.length; t++) heap.push(-values[col[t]], -col[t]);
       reducedAny = true;
     }
-    const { indices } = heap.drain();
-    const out = Float64Array.from(indices, (x) => -x);
+    const out = heap.drainIndices();
+    for (let t = 0; t < out.length; t++) out[t] = -out[t];
     if (reducedAny) memo.set(tri, out);
     return out;
   };
@@ -621,9 +752,9 @@ function cycleRepresentatives(
     if (!forest) {
       forest = Array.from({ length: n }, () => []);
       const ev = new Int32Array(2);
-      for (let e = 0; e < edges.count; e++) {
+      for (let e = 0; e < edges.length; e++) {
         if (!isMstEdge[e]) continue;
-        ctx.vertices(edges.idx[e], 2, ev);
+        ctx.vertices(edges[e], 2, ev);
         forest[ev[0]].push(ev[1]);
         forest[ev[1]].push(ev[0]);
       }
@@ -647,9 +778,9 @@ function cycleRepresentatives(
   const out: CycleRepresentative[] = [];
   const ev = new Int32Array(2);
   for (let p = 0; p < pairs.count; p++) {
+    if (p % watch.every === 0) watch.poll('representatives', 1, p, pairs.count);
     const birth = pairs.birthDiam[p];
     const death = pairs.deathDiam[p];
-    if (!(death > birth) && !keepZeroLength) continue;
     let edgeList: Array<[number, number]>;
     if (pairs.deathIdx[p] < 0) {
       ctx.vertices(pairs.birthIdx[p], 2, ev);

@@ -1138,7 +1138,8 @@ export async function loadSubjectMatrix(
         'too-few-timepoints',
       );
     const series = { t: m.rows, n: m.cols, values: m.values };
-    matrix = options.correlation === 'ledoit-wolf' ? ledoitWolf(series).matrix : pearson(series);
+    const estimator = options.correlation ?? entry.source.correlation;
+    matrix = estimator === 'ledoit-wolf' ? ledoitWolf(series).matrix : pearson(series);
   } else {
     if (m.rows !== m.cols)
       throw new InputFileError(file, `not square: ${m.rows} rows × ${m.cols} columns`, 'not-square');

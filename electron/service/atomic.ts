@@ -50,27 +50,66 @@ async function fsyncDir(dir: string): Promise<void> {
   }
 }
 
-/** Writes `data` to `file` atomically (see the module comment). */
+/** Error codes that mean the folder cannot take the write (as opposed to a bug or a bad argument). */
+const WRITE_CAUSES: Record<string, string> = {
+  ENOSPC: 'the disk is full',
+  EDQUOT: 'the disk quota is exceeded',
+  EROFS: 'the file system is read-only',
+  EACCES: 'permission denied',
+  EPERM: 'operation not permitted',
+  EFBIG: 'the file is too large for the file system',
+  EIO: 'an input/output error of the device',
+};
+
+/**
+ * A write that failed because of the folder (full disk, read-only, no permission): the message
+ * names the folder, the file and the cause; `code` keeps the system's error code.
+ */
+export class WriteError extends Error {
+  readonly code: string;
+  readonly dir: string;
+  constructor(file: string, code: string, detail: string) {
+    super(`cannot write ${basename(file)} into ${dirname(file)}: ${detail} (${code})`);
+    this.name = 'WriteError';
+    this.code = code;
+    this.dir = dirname(file);
+  }
+}
+
+/** `e` as a WriteError naming `file` when its code says the folder refused the write; else `e` unchanged. */
+export function asWriteError(e: unknown, file: string): unknown {
+  if (e instanceof WriteError) return e;
+  const code = (e as NodeJS.ErrnoException | null)?.code;
+  return code && code in WRITE_CAUSES ? new WriteError(file, code, WRITE_CAUSES[code]) : e;
+}
+
+/** Writes `data` to `file` atomically (see the module comment); on any failure the temporary is removed. */
 export async function writeFileAtomic(file: string, data: string | Uint8Array): Promise<void> {
   const tmp = tempPath(file);
-  const h = await open(tmp, 'w');
+  let h;
+  try {
+    h = await open(tmp, 'w');
+  } catch (e) {
+    throw asWriteError(e, file);
+  }
   try {
     await h.writeFile(data);
     await h.sync();
-  } catch (e) {
     await h.close();
-    await rm(tmp, { force: true });
-    throw e;
+    await rename(tmp, file);
+  } catch (e) {
+    await h.close().catch(() => undefined);
+    await rm(tmp, { force: true }).catch(() => undefined);
+    throw asWriteError(e, file);
   }
-  await h.close();
-  await rename(tmp, file);
   await fsyncDir(dirname(file));
 }
 
 /** A text file written piece by piece (tables too large to build as one string), committed atomically by close(). */
 export interface AtomicWriter {
+  /** Resolves once the text is accepted; rejects (and removes the temporary) when the write fails. */
   write(text: string): Promise<void>;
-  /** Flushes, fsyncs and renames into place. */
+  /** Flushes, fsyncs and renames into place; on failure removes the temporary. */
   close(): Promise<void>;
   /** Removes the temporary file; the final name is untouched. */
   abort(): Promise<void>;
@@ -79,34 +118,67 @@ export interface AtomicWriter {
 export function openAtomicWriter(file: string): AtomicWriter {
   const tmp = tempPath(file);
   const stream = createWriteStream(tmp, { flags: 'w' });
-  let failure: Error | null = null;
-  stream.on('error', (e) => (failure = e));
-  const write = (text: string): Promise<void> =>
-    new Promise((resolve, reject) => {
-      if (failure) return reject(failure);
-      if (stream.write(text)) resolve();
-      else stream.once('drain', resolve);
+  let failure: unknown = null;
+  // The stream reports a failed write (e.g. ENOSPC) only as an 'error' event, and then never
+  // emits 'drain': whoever waits must listen for both, or it waits forever.
+  stream.on('error', (e) => (failure ??= asWriteError(e, file)));
+  const removeTemp = async (): Promise<void> => {
+    stream.destroy();
+    await rm(tmp, { force: true }).catch(() => undefined);
+  };
+  const failWith = async (e: unknown): Promise<never> => {
+    failure ??= asWriteError(e, file);
+    await removeTemp();
+    throw failure;
+  };
+  /** Resolves on `ok`, rejects on 'error' or on a close without `ok`. */
+  const until = (ok: 'drain' | 'finish'): Promise<void> =>
+    new Promise<void>((resolve, reject) => {
+      const done = (e?: unknown): void => {
+        stream.off(ok, onOk);
+        stream.off('error', onError);
+        stream.off('close', onClose);
+        if (e === undefined) resolve();
+        else reject(e);
+      };
+      const onOk = (): void => done();
+      const onError = (e: Error): void => done(e);
+      const onClose = (): void => done(failure ?? new Error(`${tmp} was closed before it was written`));
+      stream.on(ok, onOk);
+      stream.on('error', onError);
+      stream.on('close', onClose);
     });
   return {
-    write,
-    async close() {
-      await new Promise<void>((resolve, reject) => {
-        stream.end((e?: Error | null) => (e ? reject(e) : resolve()));
-      });
-      if (failure) throw failure;
-      const h = await open(tmp, 'r+');
+    async write(text) {
+      if (failure) return failWith(failure);
+      if (stream.destroyed) return failWith(new Error(`${file}: the writer is closed`));
+      if (stream.write(text)) return;
       try {
-        await h.sync();
-      } finally {
-        await h.close();
+        await until('drain');
+      } catch (e) {
+        await failWith(e);
       }
-      await rename(tmp, file);
+    },
+    async close() {
+      if (failure) return failWith(failure);
+      try {
+        const finished = until('finish');
+        stream.end();
+        await finished;
+        if (failure) throw failure;
+        const h = await open(tmp, 'r+');
+        try {
+          await h.sync();
+        } finally {
+          await h.close();
+        }
+        await rename(tmp, file);
+      } catch (e) {
+        await failWith(e);
+      }
       await fsyncDir(dirname(file));
     },
-    async abort() {
-      stream.destroy();
-      await rm(tmp, { force: true });
-    },
+    abort: removeTemp,
   };
 }
 

@@ -38,5 +38,8 @@ export async function openCohortSource(
     ...(opts.dropRegions !== undefined ? { dropRegions: opts.dropRegions } : {}),
     ...(opts.allowedRoots !== undefined ? { allowedRoots: opts.allowedRoots } : {}),
   });
+  // The correlation estimator travels with each subject's source, so workers (and merges) load alike.
+  if (req.timeSeries && req.correlation === 'ledoit-wolf')
+    for (const s of report.subjects) s.source = { ...s.source, correlation: 'ledoit-wolf' };
   return { report, load: (entry) => loadSubjectMatrix(entry), loadsInWorker: true };
 }

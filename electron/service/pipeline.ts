@@ -16,6 +16,7 @@ import type { CachedFiltration, FiltrationCache } from './cache.ts';
 import type { CohortSource } from './cohort-source.ts';
 import { sha256File, sha256Matrix } from '../shared/hash.ts';
 import { filtrationKey } from './settings.ts';
+import { findingText } from './tables.ts';
 import type { SubjectRecord } from './tables.ts';
 import { ENGINE_VERSION } from '../engine/version.ts';
 
@@ -91,7 +92,7 @@ export function unpack(p: PackedFiltration, key: string, matrixSha256: string): 
 export function exclusionReason(report: CohortReport, id: string): string {
   const msgs = report.findings
     .filter((f) => f.subject === id && f.severity === 'error')
-    .map((f) => f.message);
+    .map((f) => findingText(f));
   return msgs.length > 0 ? [...new Set(msgs)].join('; ') : 'excluded by the cohort check';
 }
 

@@ -7,8 +7,15 @@
  * (3) features, (4) statistics (see hooks.ts). A shard run (--shard K/M) does only its share of
  * (1) and records it in OUT/.loopwise-shards/; mergeShards then does the rest, exactly as a single
  * run would.
+ *
+ * This file runs the runs (start, progress, cancel, summary) and assembles results; the output
+ * folder's rules live in outdir.ts, shards in shards.ts, the stages' view of a run in
+ * stage-context.ts, the tables in tables.ts.
+ *
+ * A run's status is 'done' only when everything asked for was made: a stage that could not run,
+ * or a file that could not be written, makes it 'failed' (with the reason among the failures),
+ * and the output folder stays unfinished so the same request resumes.
  */
-import { mkdir, readFile, readdir } from 'node:fs/promises';
 import { join, resolve } from 'node:path';
 import { setInterval, clearInterval } from 'node:timers';
 import type {
@@ -23,15 +30,26 @@ import type {
   StartRunRequest,
   StatsSettings,
   SubjectResult,
-  Table,
 } from '../api.ts';
 import { WorkerPool, defaultPoolSize } from '../workers/pool.ts';
-import { openAtomicWriter, removeStaleTemps, writeFileAtomic } from './atomic.ts';
 import { FiltrationCache } from './cache.ts';
 import { loadSubjectMatrix } from '../io/cohort.ts';
+import {
+  assertNoProblems,
+  validateCohortRequest,
+  validateStatsColumns,
+  validateStatsSettings,
+} from '../contract.ts';
 import { openCohortSource } from './cohort-source.ts';
 import type { CohortSource, SourceOptions } from './cohort-source.ts';
-import type { RunHooks, StageContext, StageOutput } from './hooks.ts';
+import type { RunHooks, StageOutput } from './hooks.ts';
+import { OutDirError } from './outdir.ts';
+import type { OutputFolder } from './outdir.ts';
+import { openRunFolder } from './run-folder.ts';
+import { SHARD_DIR, checkShard, readShards, shardLockName, shareOf, writeShardManifest } from './shards.ts';
+import type { ShardManifest } from './shards.ts';
+import { assembleCohortResults, assembleSubjectResult } from './results.ts';
+import { makeStageContext } from './stage-context.ts';
 import { cohortStages } from './stages.ts';
 import { runFiltrationStage } from './pipeline.ts';
 import type { ServiceCounters } from './pipeline.ts';
@@ -41,22 +59,17 @@ import {
   defaultStatsSettings,
   filtrationSettingsHash,
 } from './settings.ts';
-import {
-  OutDirError,
-  buildProvenance,
-  markOutDirComplete,
-  prepareOutDir,
-  tableLine,
-  tableNames,
-  unmatchedParticipants,
-  writeRunTables,
-} from './tables.ts';
+import { buildProvenance, tableNames, unmatchedParticipants, writeRunTables } from './tables.ts';
 import type { RunRecords, SubjectRecord, TableFormat } from './tables.ts';
 
-export { OutDirError };
+export { OutDirError, SHARD_DIR, shareOf };
+export type { ShardManifest };
 
-export const SHARD_DIR = '.loopwise-shards';
 export const CACHE_DIR_NAME = '.loopwise-cache';
+
+function reasonOf(e: unknown): string {
+  return e instanceof Error ? e.message : String(e);
+}
 
 export interface ServiceOptions {
   /** Cache folder for runs without an outDir (the app's own). */
@@ -78,20 +91,6 @@ export interface ServiceOptions {
   allowedRoots?: () => string[];
 }
 
-/** What a shard leaves for the merge. */
-export interface ShardManifest {
-  format: 1;
-  shard: { index: number; count: number };
-  filtrationHash: string;
-  settings: AnalysisSettings;
-  stats: StatsSettings;
-  report: CohortReport;
-  cacheDir: string;
-  records: SubjectRecord[];
-  computed: number;
-  reused: number;
-}
-
 interface RunState {
   runId: string;
   request: StartRunRequest;
@@ -101,6 +100,8 @@ interface RunState {
   source: CohortSource | null;
   report: CohortReport;
   cache: FiltrationCache;
+  /** The output folder while the run writes into it (its lock held); null without one. */
+  folder: OutputFolder | null;
   run: RunRecords | null;
   provenance: Provenance | null;
   results: StageOutput;
@@ -112,7 +113,7 @@ interface RunState {
 
 /** A run's state as it starts: running, nothing computed yet. */
 function newRunState(
-  fields: Pick<RunState, 'runId' | 'request' | 'source' | 'report' | 'cache' | 'run'>,
+  fields: Pick<RunState, 'runId' | 'request' | 'source' | 'report' | 'cache' | 'run' | 'folder'>,
 ): RunState {
   return {
     ...fields,
@@ -125,17 +126,6 @@ function newRunState(
     summary: null,
     done: Promise.resolve(null as unknown as RunSummary),
   };
-}
-
-/** The subjects of share `index` of `count` (1-based): positions ≡ index − 1 (mod count). */
-export function shareOf(total: number, shard: { index: number; count: number } | null | undefined): number[] {
-  const all = Array.from({ length: total }, (_, i) => i);
-  if (!shard) return all;
-  return all.filter((i) => i % shard.count === shard.index - 1);
-}
-
-function emptyTable(columns: string[]): Table {
-  return { columns, rows: [] };
 }
 
 export class LoopwiseService implements LoopwiseApi {
@@ -205,27 +195,41 @@ export class LoopwiseService implements LoopwiseApi {
    */
   async startRun(req: StartRunRequest): Promise<{ runId: string }> {
     checkSettings(req.settings);
+    assertNoProblems([...validateCohortRequest(req.cohort), ...validateStatsSettings(req.stats)]);
     if (req.shard) {
-      const { index, count } = req.shard;
-      if (!(Number.isInteger(count) && count >= 1 && Number.isInteger(index) && index >= 1 && index <= count))
-        throw new Error(`shard must be K/M with 1 ≤ K ≤ M, got ${index}/${count}`);
+      checkShard(req.shard);
       if (!req.outDir) throw new Error('a shard run needs an output folder, shared by all shards');
     }
     const format: TableFormat = req.tableFormat ?? 'tsv';
     const outDir = req.outDir ? resolve(req.outDir) : null;
-    if (outDir) {
-      if (req.shard) await mkdir(outDir, { recursive: true });
-      else await prepareOutDir(outDir, req.force ?? false, Object.values(tableNames(format)));
+    // The folder first: a refusal comes before any work, and the lock keeps a second run out.
+    const folder = outDir
+      ? await openRunFolder(
+          outDir,
+          req,
+          format,
+          req.force ?? false,
+          req.shard ? shardLockName(req.shard) : null,
+        )
+      : null;
+    let source: CohortSource;
+    let cache: FiltrationCache;
+    try {
+      source = await this.openSource(req.cohort, {
+        input: req.settings.input,
+        dropRegions: req.settings.dropRegions,
+      });
+      // Columns the statistics name must exist: refused now, before any filtration runs.
+      assertNoProblems(validateStatsColumns(req.stats, source.report.columns));
+      const cacheDir = resolve(
+        req.cacheDir ?? (outDir ? join(outDir, CACHE_DIR_NAME) : (this.options.cacheDir ?? CACHE_DIR_NAME)),
+      );
+      cache = new FiltrationCache(cacheDir);
+      await cache.init();
+    } catch (e) {
+      await folder?.release();
+      throw e;
     }
-    const source = await this.openSource(req.cohort, {
-      input: req.settings.input,
-      dropRegions: req.settings.dropRegions,
-    });
-    const cacheDir = resolve(
-      req.cacheDir ?? (outDir ? join(outDir, CACHE_DIR_NAME) : (this.options.cacheDir ?? CACHE_DIR_NAME)),
-    );
-    const cache = new FiltrationCache(cacheDir);
-    await cache.init();
     const runId = `run-${this.nextRun++}`;
     const state = newRunState({
       runId,
@@ -234,6 +238,7 @@ export class LoopwiseService implements LoopwiseApi {
       report: source.report,
       cache,
       run: null,
+      folder,
     });
     this.runs.set(runId, state);
     state.done = this.execute(state, format);
@@ -362,7 +367,7 @@ export class LoopwiseService implements LoopwiseApi {
       const shareRecords = share.map((i) => records.get(i) as SubjectRecord);
 
       if (req.shard) {
-        const manifest: ShardManifest = {
+        await writeShardManifest(req.outDir as string, {
           format: 1,
           shard: req.shard,
           filtrationHash: filtrationSettingsHash(req.settings),
@@ -373,14 +378,7 @@ export class LoopwiseService implements LoopwiseApi {
           records: shareRecords,
           computed,
           reused,
-        };
-        const dir = join(req.outDir as string, SHARD_DIR);
-        await mkdir(dir, { recursive: true });
-        await removeStaleTemps(dir);
-        await writeFileAtomic(
-          join(dir, `shard-${req.shard.index}-of-${req.shard.count}.json`),
-          JSON.stringify(manifest),
-        );
+        });
         return await finishSummary('done', []);
       }
 
@@ -392,128 +390,79 @@ export class LoopwiseService implements LoopwiseApi {
         unmatched: unmatchedParticipants(report),
       };
       for (const u of state.run.unmatched ?? []) excluded.push({ subject: u.id, reason: u.reason });
-      const files = await this.finish(state, req.outDir, format);
+      const files = await this.finish(state, state.folder, format);
       failures.push(...state.stageFailures);
-      return await finishSummary(state.cancelRequested ? 'cancelled' : 'done', files);
+      if (state.cancelRequested) return await finishSummary('cancelled', files);
+      return await finishSummary(state.stageFailures.length > 0 ? 'failed' : 'done', files);
     } catch (e) {
-      failures.push({ subject: '', reason: e instanceof Error ? e.message : String(e) });
-      return await finishSummary('failed', []);
+      // A failure of the run itself (a full disk, a folder it may not write): the folder's manifest
+      // still says 'running', so the same request resumes once the cause is fixed.
+      failures.push({ subject: '', reason: reasonOf(e) });
+      return await finishSummary('failed', state.folder?.files() ?? []);
+    } finally {
+      await state.folder?.release();
+      state.folder = null;
     }
   }
 
-  /** Tables, then hooks (2)–(4), then the output folder is marked complete. Returns the files written. */
-  private async finish(state: RunState, outDir: string | null, format: TableFormat): Promise<string[]> {
+  /**
+   * Tables, then hooks (2)–(4), then the output folder is marked complete (or failed, when a stage
+   * could not run). Returns the files written. Throws when a file cannot be written.
+   */
+  private async finish(state: RunState, folder: OutputFolder | null, format: TableFormat): Promise<string[]> {
     const run = state.run as RunRecords;
     const createdAt = this.now().toISOString();
-    const files: string[] = [];
-    if (outDir) {
-      const written = await writeRunTables(outDir, run, state.cache, format, createdAt);
-      files.push(...written.files);
+    state.stageFailures = [];
+    if (folder) {
+      const names = tableNames(format);
+      for (const name of Object.values(names)) await folder.claim(name);
+      const written = await writeRunTables(folder.dir, run, state.cache, format, createdAt);
       state.provenance = written.provenance;
     } else {
       state.provenance = buildProvenance(run, createdAt);
     }
     const given = this.options.hooks ?? cohortStages;
     const hooks = typeof given === 'function' ? given() : given;
-    const ctx = this.stageContext(state, outDir, format, files);
+    const ctx = makeStageContext({
+      runId: state.runId,
+      run,
+      report: state.report,
+      cache: state.cache,
+      source: state.source,
+      folder,
+      format,
+      emit: (e) => this.emit(e),
+      cancelled: () => state.cancelRequested,
+      workers: this.pool?.size ?? this.options.workers ?? defaultPoolSize(),
+    });
     for (const stage of ['groupFiltrations', 'features', 'statistics'] as const) {
       const hook = hooks[stage];
       if (!hook || state.cancelRequested) continue;
       try {
         Object.assign(state.results, await hook(ctx));
       } catch (e) {
-        // A stage that cannot run (e.g. a group too small to test) leaves the tables made so far.
-        state.stageFailures.push({
-          subject: `(${stage})`,
-          reason: e instanceof Error ? e.message : String(e),
-        });
+        // A full disk or a refused file ends the run; a stage that cannot run (e.g. a group too
+        // small to test) is reported, the later stages still run, and the run is not complete.
+        if (e instanceof OutDirError || (e as { name?: string }).name === 'WriteError') throw e;
+        state.stageFailures.push({ subject: `(${stage})`, reason: reasonOf(e) });
       }
     }
     const grid = (state.results as { grid?: number[] }).grid;
     if (grid && state.provenance) {
       // The grid is known only once the features stage has seen the cohort: record it too.
-      state.provenance = { ...state.provenance, grid };
-      if (outDir) await ctx.writeJson(tableNames(format).provenance, state.provenance);
+      const series = state.report.subjects.find((x) => x.source.timeSeries);
+      state.provenance = {
+        ...state.provenance,
+        grid,
+        gridSource: state.run?.settings.gridRange ? 'fixed' : 'cohort',
+        // From the subjects' sources, so a merge of shards records it too.
+        ...(series ? { correlation: series.source.correlation ?? 'pearson' } : {}),
+      };
+      if (folder) await ctx.writeJson(tableNames(format).provenance, state.provenance);
     }
-    if (outDir && !state.cancelRequested) await markOutDirComplete(outDir, files);
-    return files;
-  }
-
-  private stageContext(
-    state: RunState,
-    outDir: string | null,
-    format: TableFormat,
-    files: string[],
-  ): StageContext {
-    const run = state.run as RunRecords;
-    return {
-      runId: state.runId,
-      run,
-      stats: run.stats,
-      report: state.report,
-      analysed: run.records.filter((r) => r.status === 'analysed'),
-      filtration: async (record) => {
-        const e = record.key ? await state.cache.get(record.key) : null;
-        if (!e)
-          throw new Error(`the cached filtration of subject ${record.id} is missing from ${state.cache.dir}`);
-        return e;
-      },
-      matrix: async (entry) => (state.source ? state.source.load(entry) : null),
-      writeTable: async (name, table) => {
-        if (!outDir) return null;
-        const file = `${name}.${format}`;
-        let text = tableLine(table.columns, format);
-        for (const row of table.rows) text += tableLine(row, format);
-        await writeFileAtomic(join(outDir, file), text);
-        if (!files.includes(file)) files.push(file);
-        return file;
-      },
-      openTable: async (name, columns) => {
-        if (!outDir) return { row: async () => {}, close: async () => null, abort: async () => {} };
-        const file = `${name}.${format}`;
-        const writer = openAtomicWriter(join(outDir, file));
-        // Rows are gathered into chunks of about 1 MB before each write.
-        let chunk = tableLine(columns, format);
-        return {
-          row: async (cells) => {
-            chunk += tableLine(cells, format);
-            if (chunk.length > 1 << 20) {
-              await writer.write(chunk);
-              chunk = '';
-            }
-          },
-          close: async () => {
-            if (chunk) await writer.write(chunk);
-            await writer.close();
-            if (!files.includes(file)) files.push(file);
-            return file;
-          },
-          abort: () => writer.abort(),
-        };
-      },
-      writeJson: async (name, value) => {
-        if (!outDir) return null;
-        await writeFileAtomic(join(outDir, name), JSON.stringify(value, null, 2) + '\n');
-        if (!files.includes(name)) files.push(name);
-        return name;
-      },
-      format,
-      progress: (phase, done, total, message, etaMs) =>
-        this.emit({
-          runId: state.runId,
-          phase,
-          done,
-          total,
-          reused: 0,
-          currentSubject: null,
-          elapsedMs: 0,
-          etaMs: etaMs ?? null,
-          failures: [],
-          ...(message !== undefined ? { message } : {}),
-        }),
-      cancelled: () => state.cancelRequested,
-      workers: this.pool?.size ?? this.options.workers ?? defaultPoolSize(),
-    };
+    if (folder && !state.cancelRequested)
+      await folder.finish(state.stageFailures.length > 0 ? 'failed' : 'complete');
+    return folder ? folder.files() : [];
   }
 
   /**
@@ -530,52 +479,20 @@ export class LoopwiseService implements LoopwiseApi {
     } = {},
   ): Promise<RunSummary> {
     const dir = resolve(outDir);
-    const shardDir = join(dir, SHARD_DIR);
-    const names = (await readdir(shardDir).catch(() => [] as string[])).filter((n) =>
-      /^shard-\d+-of-\d+\.json$/.test(n),
-    );
-    if (names.length === 0)
-      throw new Error(`${dir}: no shard results found (expected ${SHARD_DIR}/shard-K-of-M.json)`);
-    const manifests: ShardManifest[] = [];
-    for (const n of names)
-      manifests.push(JSON.parse(await readFile(join(shardDir, n), 'utf8')) as ShardManifest);
-    const counts = [...new Set(manifests.map((m) => m.shard.count))];
-    if (counts.length > 1)
-      throw new Error(
-        `${shardDir} holds shards of different splits (${counts.map((c) => `/${c}`).join(', ')}); remove the stale ones`,
-      );
-    const count = counts[0];
-    const missing = Array.from({ length: count }, (_, i) => i + 1).filter(
-      (k) => !manifests.some((m) => m.shard.index === k),
-    );
-    if (missing.length > 0)
-      throw new Error(
-        `shard ${missing.map((k) => `${k}/${count}`).join(', ')} not finished: run analyze --shard for it first`,
-      );
-    manifests.sort((a, b) => a.shard.index - b.shard.index);
+    const { manifests, records } = await readShards(dir);
     const first = manifests[0];
-    for (const m of manifests) {
-      if (
-        m.filtrationHash !== first.filtrationHash ||
-        JSON.stringify(m.settings) !== JSON.stringify(first.settings)
-      )
-        throw new Error(`shard ${m.shard.index}/${count} was run with other settings than shard 1/${count}`);
-      if (m.report.subjects.length !== first.report.subjects.length)
-        throw new Error(`shard ${m.shard.index}/${count} saw a different cohort than shard 1/${count}`);
-    }
-    const total = first.report.subjects.length;
-    const byIndex = new Map<number, SubjectRecord>();
-    for (const m of manifests) for (const r of m.records) byIndex.set(r.index, r);
-    const records: SubjectRecord[] = [];
-    for (let i = 0; i < total; i++) {
-      const r = byIndex.get(i);
-      if (!r) throw new Error(`subject ${first.report.subjects[i].id} is in no shard's results`);
-      records.push(r);
-    }
     const format = opts.tableFormat ?? 'tsv';
     // Statistics run after the merge, so they may be chosen now; the shards' own are the default.
     const stats: StatsSettings = { ...first.stats, ...opts.stats };
-    await prepareOutDir(dir, opts.force ?? false, Object.values(tableNames(format)));
+    assertNoProblems(validateStatsSettings(stats));
+    assertNoProblems(validateStatsColumns(stats, first.report.columns));
+    const cohort = { dir: first.report.root };
+    const folder = await openRunFolder(
+      dir,
+      { cohort, settings: first.settings, stats },
+      format,
+      opts.force ?? false,
+    );
     const cache = new FiltrationCache(resolve(opts.cacheDir ?? first.cacheDir));
     const runId = `run-${this.nextRun++}`;
     const state = newRunState({
@@ -589,6 +506,7 @@ export class LoopwiseService implements LoopwiseApi {
       source: null,
       report: first.report,
       cache,
+      folder,
       run: {
         cohortRoot: first.report.root,
         settings: first.settings,
@@ -598,11 +516,21 @@ export class LoopwiseService implements LoopwiseApi {
       },
     });
     this.runs.set(runId, state);
-    // From the recorded report, without checking the cohort again; matrices are read only if a stage asks.
-    state.source = this.options.openSource
-      ? await this.openSource({ dir: first.report.root }).catch(() => null)
-      : { report: first.report, load: (entry) => loadSubjectMatrix(entry), loadsInWorker: true };
-    const files = await this.finish(state, dir, format);
+    let files: string[];
+    try {
+      // From the recorded report, without checking the cohort again; matrices are read only if a stage asks.
+      state.source = this.options.openSource
+        ? await this.openSource({ dir: first.report.root }).catch(() => null)
+        : { report: first.report, load: (entry) => loadSubjectMatrix(entry), loadsInWorker: true };
+      files = await this.finish(state, folder, format);
+    } catch (e) {
+      state.status = 'failed';
+      throw e;
+    } finally {
+      await folder.release();
+      state.folder = null;
+    }
+    const status = state.stageFailures.length > 0 ? 'failed' : 'done';
     const failures = [
       ...state.stageFailures,
       ...records.filter((r) => r.status === 'failed').map((r) => ({ subject: r.id, reason: r.reason ?? '' })),
@@ -615,7 +543,7 @@ export class LoopwiseService implements LoopwiseApi {
     ];
     const summary: RunSummary = {
       runId,
-      status: 'done',
+      status,
       computed: manifests.reduce((a, m) => a + m.computed, 0),
       reused: manifests.reduce((a, m) => a + m.reused, 0),
       analysed: records.filter((r) => r.status === 'analysed').length,
@@ -627,7 +555,7 @@ export class LoopwiseService implements LoopwiseApi {
       files,
     };
     state.summary = summary;
-    state.status = 'done';
+    state.status = status;
     state.done = Promise.resolve(summary);
     return summary;
   }
@@ -638,61 +566,12 @@ export class LoopwiseService implements LoopwiseApi {
 
   async cohortResults(runId: string): Promise<CohortResults | null> {
     const s = this.runs.get(runId);
-    if (!s || s.status !== 'done' || !s.run || !s.provenance) return null;
-    const r = s.results;
-    return {
-      runId,
-      provenance: s.provenance,
-      // Until the features hook (stage 3) fills it: the per-subject interval counts.
-      features: r.features ?? (await this.countsTable(s)),
-      nodeScores:
-        r.nodeScores ?? emptyTable(['participant_id', 'node', 'label', 'network', 'measure', 'value']),
-      groupCurves: r.groupCurves ?? [],
-      groupDiagrams: r.groupDiagrams ?? [],
-      stats: r.stats ?? null,
-      diagramTests: r.diagramTests ?? null,
-      embedding: r.embedding ?? null,
-    };
-  }
-
-  private async countsTable(s: RunState): Promise<Table> {
-    const run = s.run as RunRecords;
-    const dims = Array.from({ length: run.settings.maxDim + 1 }, (_, d) => d);
-    const table: Table = {
-      columns: ['participant_id', 'status', ...dims.map((d) => `h${d}_intervals`)],
-      rows: [],
-    };
-    for (const rec of run.records) {
-      const e = rec.status === 'analysed' && rec.key ? await s.cache.get(rec.key) : null;
-      table.rows.push([rec.id, rec.status, ...dims.map((d) => (e ? e.diagrams[d].length : null))]);
-    }
-    return table;
+    return s ? assembleCohortResults(s) : null;
   }
 
   async subjectResult(runId: string, subjectId: string): Promise<SubjectResult | null> {
     const s = this.runs.get(runId);
-    const rec = s?.run?.records.find((r) => r.id === subjectId);
-    if (!s || !rec || rec.status !== 'analysed' || !rec.key) return null;
-    const e = await s.cache.get(rec.key);
-    if (!e) return null;
-    const entry = s.report.subjects[rec.index];
-    const matrix = s.source ? await s.source.load(entry).catch(() => null) : null;
-    const groupColumn = s.run?.stats.groupColumn;
-    const g = groupColumn ? entry.covariates[groupColumn] : null;
-    return {
-      id: rec.id,
-      group: g === null || g === undefined ? null : String(g),
-      n: matrix?.n ?? e.n,
-      matrix: matrix ? Array.from(matrix.values) : [],
-      diagrams: e.diagrams,
-      representatives: (e.representatives ?? []).map((rep, k) => ({
-        birth: e.diagrams[1][k][0],
-        death: e.diagrams[1][k][1],
-        edges: rep.edges,
-        nodes: rep.nodes,
-      })),
-      nodeScores: {},
-    };
+    return s ? assembleSubjectResult(s, subjectId) : null;
   }
 
   async exportRun(runId: string, outDir: string, overwrite: boolean): Promise<{ files: string[] }> {
@@ -700,8 +579,17 @@ export class LoopwiseService implements LoopwiseApi {
     if (!s || s.status !== 'done' || !s.run) throw new Error(`run ${runId} has not finished`);
     const dir = resolve(outDir);
     const format = s.request.tableFormat ?? 'tsv';
-    await prepareOutDir(dir, overwrite, Object.values(tableNames(format)));
-    return { files: await this.finish(s, dir, format) };
+    const folder = await openRunFolder(dir, s.request, format, overwrite);
+    try {
+      const files = await this.finish(s, folder, format);
+      if (s.stageFailures.length > 0)
+        throw new Error(
+          `the export to ${dir} is incomplete: ${s.stageFailures.map((f) => `${f.subject} ${f.reason}`).join('; ')}`,
+        );
+      return { files };
+    } finally {
+      await folder.release();
+    }
   }
 }
 

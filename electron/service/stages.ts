@@ -3,7 +3,7 @@
  * with their exports, and group statistics. One `cohortStages()` object serves one run: the
  * features stage leaves its tables for the statistics stage.
  *
- * Files written (TSV, or CSV with --csv; n/a for missing):
+ * Files written (TSV, or CSV with --csv; NA for missing):
  *   features.tsv        participant_id, the participants table's columns, every scalar feature
  *   nodes.tsv           participant_id, node, label, network, measure, value
  *   networks.tsv        participant_id, network, measure, mean, nodes   (when the node table names networks)
@@ -586,7 +586,7 @@ function keptRegions(n: number, drop: number[]): Int32Array {
   return Int32Array.from({ length: n }, (_, i) => i).filter((i) => !d.has(i));
 }
 
-/** Sets dropped regions' scores to NaN (written as n/a). */
+/** Sets dropped regions' scores to NaN (written as NA). */
 function maskDropped(
   scores: Record<string, number[]>,
   kept: Int32Array,

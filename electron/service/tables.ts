@@ -1,16 +1,16 @@
 /**
- * The run's tables on disk: intervals, subjects and provenance, each written atomically, and the
- * rules for an output folder (what may be replaced, what is refused). A single run and a merge
+ * The run's tables on disk: intervals, subjects and provenance, each written atomically (the
+ * output folder's rules are outdir.ts's). A single run and a merge
  * of shards call writeRunTables with the same records, so they write the same bytes (apart from
  * provenance.createdAt).
  */
-import { mkdir, readFile, readdir } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { AnalysisSettings, CohortReport, Provenance, StatsSettings } from '../api.ts';
 import { ENGINE_VERSION } from '../engine/version.ts';
 import pkg from '../../package.json' with { type: 'json' };
-import { openAtomicWriter, removeStaleTemps, writeFileAtomic } from './atomic.ts';
+import { openAtomicWriter, writeFileAtomic } from './atomic.ts';
 import type { CachedFiltration, FiltrationCache } from './cache.ts';
+import { MISSING_VALUE } from '../contract.ts';
 
 export const SOFTWARE_VERSION: string = pkg.version;
 
@@ -47,14 +47,17 @@ export interface RunRecords {
   unmatched?: Array<{ id: string; reason: string }>;
 }
 
-/** Participants of the report without a matrix: the QC findings 'no-matrix'. */
+/** A finding's message naming the file behind it ('FILE: message'), unless the message already starts with it. */
+export function findingText(f: { file?: string | null; message: string }): string {
+  return f.file && !f.message.startsWith(f.file) ? `${f.file}: ${f.message}` : f.message;
+}
+
+/** Participants of the report without a matrix: the QC findings 'no-matrix' (naming the participants table). */
 export function unmatchedParticipants(report: CohortReport): Array<{ id: string; reason: string }> {
   return report.findings
     .filter((f) => f.code === 'no-matrix' && f.subject !== null)
-    .map((f) => ({ id: f.subject as string, reason: f.message }));
+    .map((f) => ({ id: f.subject as string, reason: findingText(f) }));
 }
-
-export const OUT_MARKER = '.loopwise-run.json';
 
 export function tableNames(format: TableFormat): { intervals: string; subjects: string; provenance: string } {
   return { intervals: `intervals.${format}`, subjects: `subjects.${format}`, provenance: 'provenance.json' };
@@ -68,7 +71,7 @@ export function formatNumber(x: number): string {
 }
 
 function cell(v: string | number | null, format: TableFormat): string {
-  if (v === null) return 'n/a';
+  if (v === null) return MISSING_VALUE;
   if (typeof v === 'number') return formatNumber(v);
   if (format === 'tsv') return v.replace(/[\t\r\n]+/g, ' ');
   return /[",\r\n]/.test(v) ? `"${v.replace(/"/g, '""')}"` : v;
@@ -76,63 +79,6 @@ function cell(v: string | number | null, format: TableFormat): string {
 
 export function tableLine(cells: Array<string | number | null>, format: TableFormat): string {
   return cells.map((c) => cell(c, format)).join(format === 'tsv' ? '\t' : ',') + '\n';
-}
-
-export class OutDirError extends Error {
-  constructor(message: string) {
-    super(message);
-    this.name = 'OutDirError';
-  }
-}
-
-interface OutMarker {
-  status: 'running' | 'complete';
-  files: string[];
-}
-
-async function readMarker(dir: string): Promise<OutMarker | null> {
-  try {
-    return JSON.parse(await readFile(join(dir, OUT_MARKER), 'utf8')) as OutMarker;
-  } catch {
-    return null;
-  }
-}
-
-/**
- * Makes `dir` ready to receive a run's tables. A folder with visible files is refused unless
- * `force`, except when those files are the tables of an interrupted Loopwise run (its marker says
- * 'running'): then the run resumes and replaces them. Even with `force`, only Loopwise's own
- * file names are ever replaced; other files are left alone. Returns the files that will be replaced.
- */
-export async function prepareOutDir(dir: string, force: boolean, ownNames: string[]): Promise<string[]> {
-  await mkdir(dir, { recursive: true });
-  await removeStaleTemps(dir);
-  const visible = (await readdir(dir)).filter((n) => !n.startsWith('.')).sort();
-  const marker = await readMarker(dir);
-  const ours = new Set([...ownNames, ...(marker?.files ?? [])]);
-  const replaced = visible.filter((n) => ours.has(n));
-  if (visible.length > 0 && !force) {
-    const interrupted = marker?.status === 'running' && visible.every((n) => ours.has(n));
-    if (!interrupted) {
-      const list = visible.slice(0, 5).join(', ') + (visible.length > 5 ? ', …' : '');
-      throw new OutDirError(
-        `${dir} already holds files (${list}); give --force to replace Loopwise's tables there ` +
-          `(other files are left alone), or choose another output folder`,
-      );
-    }
-  }
-  await writeFileAtomic(
-    join(dir, OUT_MARKER),
-    JSON.stringify({ status: 'running', files: [...ours].sort() }),
-  );
-  return replaced;
-}
-
-export async function markOutDirComplete(dir: string, files: string[]): Promise<void> {
-  await writeFileAtomic(
-    join(dir, OUT_MARKER),
-    JSON.stringify({ status: 'complete', files: [...files].sort() }),
-  );
 }
 
 export interface ProvenanceExtras {
@@ -174,7 +120,7 @@ export function buildProvenance(run: RunRecords, createdAt: string): Provenance 
 }
 
 /**
- * Writes intervals, subjects and provenance into `dir` (prepared by prepareOutDir). Entries are
+ * Writes intervals, subjects and provenance into `dir` (opened as an OutputFolder, these names claimed). Entries are
  * read from the cache one subject at a time, so memory stays bounded for any cohort size.
  * Returns the file names written.
  */

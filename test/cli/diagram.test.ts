@@ -77,7 +77,7 @@ describe('loopwise diagram', () => {
   it('refuses bad options with exit 2 and a specific message', async () => {
     expect((await run(['diagram'])).err).toMatch(/no FILE given/);
     expect((await run(['diagram', square, '--max-dim', '3'])).err).toMatch(
-      /--max-dim must be 1 or 2, got '3'/,
+      /--max-dim: must be one of 1, 2, got 3/,
     );
     expect((await run(['diagram', square, '--cap-density', '1.5'])).code).toBe(2);
     expect((await run(['diagram', square, '--cap-density', '0.5', '--cap-distance', '1'])).err).toMatch(

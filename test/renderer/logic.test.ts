@@ -124,8 +124,22 @@ describe('Analysis settings and progress', () => {
       { ...defaults.stats, permutations: -1, groupColumn: 'nope' },
       report,
     );
-    expect(bad).toHaveLength(5);
-    expect(bad.join(' ')).toMatch(/density.*grid.*Permutations.*99.*nope/s);
+    // The contract's problems (each naming its field and option), then the form's cohort checks.
+    expect(bad.map((p) => p.field)).toEqual([
+      'settings.cap',
+      'settings.gridPoints',
+      'stats.permutations',
+      'stats.groupColumn',
+      'settings.dropRegions',
+    ]);
+    expect(bad.map((p) => p.option)).toEqual([
+      '--cap-density',
+      '--grid-points',
+      '--permutations',
+      '--group',
+      '--drop-regions',
+    ]);
+    expect(bad.map((p) => p.message).join(' ')).toMatch(/\(0, 1\].*\[2, 10000\].*-1.*'nope'.*99/s);
   });
 
   const event = (over: Partial<ProgressEvent>): ProgressEvent => ({
@@ -352,7 +366,7 @@ describe('Subject', () => {
 });
 
 describe('Exports', () => {
-  it('writes TSV that a CSV/TSV parser (papaparse) reads back, missing values as n/a', () => {
+  it('writes TSV that a CSV/TSV parser (papaparse) reads back, missing values as NA', () => {
     const t: Table = {
       columns: ['id', 'x', 'note'],
       rows: [
@@ -365,7 +379,7 @@ describe('Exports', () => {
     expect(parsed).toEqual([
       ['id', 'x', 'note'],
       ['a', '1.5', 'tab here'],
-      ['b', 'n/a', 'ok'],
+      ['b', 'NA', 'ok'],
     ]);
     const csv = Papa.parse<string[]>(tableText({ columns: ['a'], rows: [['x, "y"']] }, 'csv').trimEnd()).data;
     expect(csv).toEqual([['a'], ['x, "y"']]);
@@ -501,7 +515,7 @@ describe('group comparisons the data cannot support', () => {
       subjects: report.subjects.map((s, i) => ({ ...s, usable: i < 3 })),
     };
     // sub-01, sub-03 are control, sub-02 patient.
-    expect(settingsProblems(defaults.settings, defaults.stats, few)).toEqual([
+    expect(settingsProblems(defaults.settings, defaults.stats, few).map((p) => p.message)).toEqual([
       'Group patient of group has fewer than 2 usable subjects; choose no group column instead.',
     ]);
     expect(settingsProblems(defaults.settings, { ...defaults.stats, groupColumn: null }, few)).toEqual([]);

@@ -135,6 +135,77 @@ describe('Analysis and Export', () => {
       target: { value: '1' },
     });
     expect(screen.getByRole('button', { name: 'Run analysis' })).toHaveProperty('disabled', true);
-    expect(screen.getByText('The grid needs between 2 and 10000 points.')).toBeTruthy();
+    // The contract's message, under the field it concerns.
+    const problem = screen.getByText('must be an integer in [2, 10000], got 1');
+    expect(problem.getAttribute('data-field')).toBe('settings.gridPoints');
+  });
+
+  it('refuses a seed of -1 under the Seed field, as every door does', async () => {
+    const { api, session } = await openApp();
+    await fireEvent.click(screen.getByRole('button', { name: 'Open the sample cohort' }));
+    await waitFor(() => expect(session.report).not.toBeNull());
+    await fireEvent.click(within(screen.getByRole('navigation')).getByRole('button', { name: 'Analysis' }));
+    await fireEvent.change(screen.getByRole('spinbutton', { name: 'Seed' }), { target: { value: '-1' } });
+    expect(screen.getByRole('button', { name: 'Run analysis' })).toHaveProperty('disabled', true);
+    const shown = [...document.querySelectorAll('[data-field="stats.seed"]')].map((e) => e.textContent);
+    expect(shown).toEqual(['must be an integer in [0, 4294967295], got -1']);
+    expect(api.calls.some((c) => c.method === 'startRun')).toBe(false);
+  });
+});
+
+describe('Study design and readers', () => {
+  it('sends the effect, reference level, blocks, covariates, time series and estimator to the service', async () => {
+    const { api, session } = await openApp();
+    await fireEvent.click(screen.getByRole('checkbox', { name: /region time series/ }));
+    await fireEvent.change(screen.getByRole('combobox', { name: 'Correlation estimator' }), {
+      target: { value: 'ledoit-wolf' },
+    });
+    await fireEvent.click(screen.getByRole('button', { name: 'Open the sample cohort' }));
+    await waitFor(() => expect(session.report).not.toBeNull());
+    expect(api.calls.find((c) => c.method === 'openCohort')?.args).toEqual([
+      { dir: '/data/sample', timeSeries: true, correlation: 'ledoit-wolf' },
+    ]);
+    await fireEvent.change(screen.getByRole('combobox', { name: 'Design' }), { target: { value: 'effect' } });
+    await fireEvent.change(screen.getByRole('combobox', { name: 'Effect' }), { target: { value: 'group' } });
+    await fireEvent.change(screen.getByRole('combobox', { name: 'Reference level' }), {
+      target: { value: 'patient' },
+    });
+    await fireEvent.change(screen.getByRole('combobox', { name: 'Exchangeability blocks' }), {
+      target: { value: 'sex' },
+    });
+    await fireEvent.click(screen.getByRole('checkbox', { name: 'age' }));
+    expect(session.stats).toMatchObject({
+      groupColumn: null,
+      effect: 'group',
+      reference: 'patient',
+      blocks: 'sex',
+      covariates: ['age'],
+    });
+    await fireEvent.click(within(screen.getByRole('navigation')).getByRole('button', { name: 'Analysis' }));
+    await fireEvent.click(screen.getByRole('button', { name: 'Run analysis' }));
+    await waitFor(() => expect(api.calls.some((c) => c.method === 'startRun')).toBe(true));
+    const req = api.calls.find((c) => c.method === 'startRun')!.args[0] as {
+      cohort: unknown;
+      stats: unknown;
+    };
+    expect(req.cohort).toEqual({ dir: '/data/sample', timeSeries: true, correlation: 'ledoit-wolf' });
+    expect(req.stats).toMatchObject({
+      effect: 'group',
+      reference: 'patient',
+      blocks: 'sex',
+      covariates: ['age'],
+    });
+  });
+
+  it('names a model column the cohort lacks under the Model field, listing the columns there are', async () => {
+    const { session } = await openApp();
+    await fireEvent.click(screen.getByRole('button', { name: 'Open the sample cohort' }));
+    await waitFor(() => expect(session.report).not.toBeNull());
+    await fireEvent.change(screen.getByRole('combobox', { name: 'Design' }), { target: { value: 'model' } });
+    await fireEvent.change(screen.getByRole('textbox', { name: 'Model' }), {
+      target: { value: 'group + agee' },
+    });
+    const shown = [...document.querySelectorAll('[data-field="stats.model"]')].map((e) => e.textContent);
+    expect(shown).toEqual(["no column 'agee' in the participants table; available: group, age, sex"]);
   });
 });

@@ -111,7 +111,8 @@ it('survives SIGKILL at random points and resumes to the uninterrupted result', 
 
   // A kill that landed after the tables and the folder's completion mark leaves nothing to resume
   // (a re-run would then be refused as a finished folder, rightly).
-  const complete = JSON.parse(readFileSync(join(out, '.loopwise-run.json'), 'utf8')).status === 'complete';
+  const complete =
+    JSON.parse(readFileSync(join(out, '.loopwise-manifest.json'), 'utf8')).status === 'complete';
   const last = killed === points.length && !complete ? await analyze(out) : null;
   if (last) expect(last.code, last.stderr).toBe(0);
   const reused = Number(/(\d+) reused from the cache/.exec(last?.stderr ?? '')?.[1] ?? 0);

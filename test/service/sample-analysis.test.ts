@@ -149,7 +149,7 @@ print(json.dumps(out))`;
       expect(r.stderr).toBe('');
       const shapes = JSON.parse(r.stdout);
       expect(shapes['features.tsv'][0]).toBe(24);
-      // Numeric columns come out numeric, missing values as NaN (written n/a).
+      // Numeric columns come out numeric, missing values as NaN (written NA).
       expect(shapes['stats.tsv'][2][shapes['stats.tsv'][1] - 1]).toBe('int64');
       expect(shapes['nodes.tsv'][2][6]).toBe('float64');
     },

@@ -329,3 +329,80 @@ describe('in-memory cohorts', () => {
     await again.close();
   });
 });
+
+describe('the output folder’s manifest', () => {
+  it('a stage that cannot run fails the run, leaves it unfinished and resumable, and a different request is refused with the reason', async () => {
+    const dir = join(root, 'stage-fails');
+    const failing = createLoopwiseService({
+      openSource: async () => memorySource(6, 12),
+      cacheDir: join(root, 'stage-cache'),
+      hooks: () => ({
+        features: async (ctx) => {
+          await ctx.writeTable('features', { columns: ['participant_id'], rows: [['m0']] });
+          throw new Error('nodes.tsv: row 2 has 1 field, the header 3');
+        },
+      }),
+    });
+    const { runId } = await failing.startRun(request(dir, { workers: 1 }));
+    const summary = await failing.waitForRun(runId);
+    expect(summary.status).toBe('failed');
+    expect(summary.failures).toContainEqual({
+      subject: '(features)',
+      reason: 'nodes.tsv: row 2 has 1 field, the header 3',
+    });
+    // What was made before the failure is kept.
+    expect(summary.files).toEqual(['intervals.tsv', 'subjects.tsv', 'provenance.json', 'features.tsv']);
+    // The results made before the failure are still answered (here the per-subject interval counts).
+    expect((await failing.cohortResults(runId))?.features.rows).toHaveLength(6);
+    const manifest = JSON.parse(readFileSync(join(dir, '.loopwise-manifest.json'), 'utf8'));
+    expect(manifest.status).toBe('failed');
+    expect(manifest.files).toEqual(['features.tsv', 'intervals.tsv', 'provenance.json', 'subjects.tsv']);
+    expect(existsSync(join(dir, '.loopwise-lock'))).toBe(false);
+
+    // The same request resumes without --force; another one is refused, naming what differs.
+    const again = await failing.startRun(request(dir, { workers: 1 }));
+    expect((await failing.waitForRun(again.runId)).reused).toBe(3);
+    const other = { ...defaultStatsSettings(), permutations: 99 };
+    await expect(failing.startRun(request(dir, { workers: 1, stats: other }))).rejects.toThrow(
+      /unfinished run with other settings \(stats: .*"permutations":5000.* → .*"permutations":99/,
+    );
+    await failing.close();
+  });
+
+  it('a stage whose table name is taken by a file Loopwise did not write fails the run naming it, and leaves the file', async () => {
+    const dir = join(root, 'taken');
+    const service = createLoopwiseService({
+      openSource: async () => memorySource(4, 12),
+      cacheDir: join(root, 'taken-cache'),
+      hooks: () => ({
+        features: async (ctx) => {
+          await ctx.writeTable('my-notes', { columns: ['a'], rows: [] });
+          return {};
+        },
+      }),
+    });
+    const { runId } = await service.startRun(request(dir, { workers: 1 }));
+    expect((await service.waitForRun(runId)).status).toBe('done');
+    // The user puts a file of that name beside the tables after a forced run removed ours.
+    writeFileSync(join(dir, 'extra.tsv'), 'mine\n');
+    const second = createLoopwiseService({
+      openSource: async () => memorySource(4, 12),
+      cacheDir: join(root, 'taken-cache'),
+      hooks: () => ({
+        features: async (ctx) => {
+          await ctx.writeTable('extra', { columns: ['a'], rows: [] });
+          return {};
+        },
+      }),
+    });
+    const r = await second.startRun(request(dir, { workers: 1, force: true }));
+    const s = await second.waitForRun(r.runId);
+    expect(s.status).toBe('failed');
+    expect(s.failures.at(-1)?.reason).toMatch(
+      /extra\.tsv was not written by Loopwise and will not be overwritten/,
+    );
+    expect(readFileSync(join(dir, 'extra.tsv'), 'utf8')).toBe('mine\n');
+    await service.close();
+    await second.close();
+  });
+});

@@ -73,11 +73,19 @@ describe('Electron IPC', () => {
     await expect(call('exportRun', ['run-1', out, 'yes'])).rejects.toThrow(/overwrite/);
   });
 
+  it('rejects the values the contract refuses (here seed −1), naming the field and the option', async () => {
+    const { settings, stats } = (await call('defaultSettings', [])) as { settings: unknown; stats: object };
+    const req = { cohort: { dir: sample }, settings, stats: { ...stats, seed: -1 }, outDir: null };
+    await expect(call('startRun', [req])).rejects.toThrow(/stats\.seed \(--seed\): must be an integer/);
+    const calls = api.calls.filter((c) => c.method === 'startRun').length;
+    expect(calls).toBe(0);
+  });
+
   it('touches only the sample cohort, the default output folder and folders picked in the native dialog', async () => {
     await expect(call('openCohort', [{ dir: sample }])).resolves.toMatchObject({ n: 16 });
     await expect(call('exportRun', ['run-1', join(out, 'x'), false])).resolves.toBeTruthy();
-    await expect(call('openCohort', [{ dir: other }])).rejects.toThrow(/not inside a folder you picked/);
-    await expect(call('openCohort', [{ dir: join(sample, '..', 'other') }])).rejects.toThrow(/not inside/);
+    await expect(call('openCohort', [{ dir: other }])).rejects.toThrow(/outside the folders .*folder button/);
+    await expect(call('openCohort', [{ dir: join(sample, '..', 'other') }])).rejects.toThrow(/outside/);
     electron.picked.push(other);
     await expect(call('pickFolder', ['cohort'])).resolves.toBe(other);
     await expect(call('openCohort', [{ dir: other }])).resolves.toMatchObject({ n: 16 });
@@ -85,5 +93,24 @@ describe('Electron IPC', () => {
     const info = (await call('info', [])) as { mode: string; roots: string[] };
     expect(info.mode).toBe('electron');
     expect(info.roots.sort()).toEqual([other, out, sample].sort());
+  });
+
+  it('never writes into the sample or a cohort folder, even one picked for output', async () => {
+    const { settings, stats } = await api.defaultSettings();
+    // The sample is readable, not writable.
+    await expect(call('exportRun', ['run-1', sample, true])).rejects.toThrow(/not inside a folder .* write/);
+    await expect(
+      call('startRun', [
+        { cohort: { dir: sample }, settings, stats, outDir: join(sample, 'out'), force: true },
+      ]),
+    ).rejects.toThrow(/write/);
+    // A cohort picked as such is read-only; picked again for output, it stays a cohort.
+    await expect(call('exportRun', ['run-1', other, true])).rejects.toThrow(/write/);
+    electron.picked.push(other);
+    await expect(call('pickFolder', ['output'])).resolves.toBe(other);
+    await expect(call('exportRun', ['run-1', join(other, 'tables'), true])).rejects.toThrow(
+      /inside the cohort folder .*read-only/,
+    );
+    await expect(call('exportRun', ['run-1', join(out, 'tables'), true])).resolves.toBeTruthy();
   });
 });

@@ -4,12 +4,12 @@
  */
 import { get, type ClientRequest } from 'node:http';
 
-export function nodeEventSource(url: string) {
+export function nodeEventSource(url: string, headers: Record<string, string> = {}) {
   const source: { onmessage: ((e: { data: string }) => void) | null; close(): void } = {
     onmessage: null,
     close: () => req.destroy(),
   };
-  const req: ClientRequest = get(url, (res) => {
+  const req: ClientRequest = get(url, { headers }, (res) => {
     if (res.statusCode !== 200) throw new Error(`event stream answered ${res.statusCode}`);
     res.setEncoding('utf8');
     let buffer = '';

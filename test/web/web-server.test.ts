@@ -13,6 +13,7 @@ let dir: string;
 let cohort: string;
 let out: string;
 let outside: string;
+let sample: string;
 let api: FakeApi;
 let server: WebServer;
 let base: string;
@@ -22,14 +23,21 @@ beforeAll(async () => {
   cohort = join(dir, 'cohort');
   out = join(dir, 'out');
   outside = join(dir, 'elsewhere');
-  for (const d of [cohort, out, outside]) mkdirSync(d);
+  sample = join(dir, 'sample-data', 'rhythm-study');
+  for (const d of [cohort, out, outside, sample]) mkdirSync(d, { recursive: true });
   const statics = join(dir, 'dist');
   mkdirSync(statics);
   writeFileSync(join(statics, 'index.html'), '<!doctype html><title>t</title>');
   writeFileSync(join(dir, 'secret.txt'), 'not for the page');
   symlinkSync(outside, join(cohort, 'link-out'));
   api = createFakeApi({ root: cohort });
-  server = await startWebServer(api, { port: 0, roots: [cohort, out], staticDir: statics });
+  server = await startWebServer(api, {
+    port: 0,
+    roots: [cohort, join(dir, 'sample-data')],
+    writeRoots: [out],
+    sampleCohort: sample,
+    staticDir: statics,
+  });
   base = `http://127.0.0.1:${server.port}`;
 });
 
@@ -139,6 +147,7 @@ describe('browser-mode server', () => {
   it('serves the renderer with a content security policy and refuses to leave its folder', async () => {
     const res = await fetch(`${base}/`);
     expect(res.status).toBe(200);
+    expect(res.headers.get('set-cookie')).toBeNull();
     expect(res.headers.get('content-security-policy')).toContain("default-src 'self'");
     expect((await fetch(`${base}/..%2fsecret.txt`)).status).toBe(404);
   });
@@ -173,6 +182,102 @@ describe('browser-mode server', () => {
     const client = createHttpClient({ base, token: server.token });
     const info = await client.info();
     expect(info.mode).toBe('web');
-    expect(info.roots).toEqual([cohort, out]);
+    expect(info.roots).toEqual([cohort, join(dir, 'sample-data'), out]);
+  });
+
+  it('refuses the token in the address of any API request (it would stay in logs and history)', async () => {
+    const before = api.calls.length;
+    const t = encodeURIComponent(server.token);
+    expect((await fetch(`${base}/api/events?token=${t}`)).status).toBe(401);
+    expect((await fetch(`${base}/api/info?token=${t}`, { method: 'POST', body: '[]' })).status).toBe(401);
+    expect(
+      (
+        await fetch(`${base}/api/openCohort?token=${t}`, {
+          method: 'POST',
+          body: JSON.stringify([{ dir: cohort }]),
+        })
+      ).status,
+    ).toBe(401);
+    expect(api.calls.length).toBe(before);
+  });
+
+  it('trades the token of the first page load for an HttpOnly SameSite=Strict cookie and a clean address', async () => {
+    const res = await fetch(`${base}/?token=${encodeURIComponent(server.token)}`, { redirect: 'manual' });
+    expect(res.status).toBe(303);
+    expect(res.headers.get('location')).toBe('/');
+    const cookie = res.headers.get('set-cookie') ?? '';
+    expect(cookie).toMatch(/^loopwise-token=[^;]+; /);
+    expect(cookie).toMatch(/; HttpOnly/);
+    expect(cookie).toMatch(/; SameSite=Strict/);
+    const pair = cookie.split(';')[0];
+    // The cookie alone opens the API (what the page's fetch and EventSource send).
+    const ok = await fetch(`${base}/api/info`, { method: 'POST', body: '[]', headers: { cookie: pair } });
+    expect(ok.status).toBe(200);
+    const events = await fetch(`${base}/api/events`, { headers: { cookie: pair } });
+    expect(events.status).toBe(200);
+    await events.body?.cancel();
+    // Another parameter of the address survives; a wrong token gets neither cookie nor page.
+    const other = await fetch(`${base}/?view=groups&token=${encodeURIComponent(server.token)}`, {
+      redirect: 'manual',
+    });
+    expect(other.headers.get('location')).toBe('/?view=groups');
+    const wrong = await fetch(`${base}/?token=nope`, { redirect: 'manual' });
+    expect(wrong.status).toBe(401);
+    expect(wrong.headers.get('set-cookie')).toBeNull();
+    const bad = await fetch(`${base}/api/info`, {
+      method: 'POST',
+      body: '[]',
+      headers: { cookie: 'loopwise-token=nope' },
+    });
+    expect(bad.status).toBe(401);
+  });
+
+  it('refuses requests from another origin or site with 403, even carrying the token', async () => {
+    const before = api.calls.length;
+    const foreign: Array<Record<string, string>> = [
+      { origin: 'https://evil.example' },
+      { origin: `http://127.0.0.1:${server.port + 1}` },
+      { origin: 'null' },
+      { 'sec-fetch-site': 'cross-site' },
+      { 'sec-fetch-site': 'same-site' },
+    ];
+    for (const headers of foreign) {
+      const res = await fetch(`${base}/api/openCohort`, {
+        method: 'POST',
+        headers: { 'x-loopwise-token': server.token, ...headers },
+        body: JSON.stringify([{ dir: cohort }]),
+      });
+      expect(res.status, JSON.stringify(headers)).toBe(403);
+    }
+    expect(api.calls.length).toBe(before);
+    const own = await fetch(`${base}/api/openCohort`, {
+      method: 'POST',
+      headers: { 'x-loopwise-token': server.token, origin: base, 'sec-fetch-site': 'same-origin' },
+      body: JSON.stringify([{ dir: cohort }]),
+    });
+    expect(own.status).toBe(200);
+  });
+
+  it('writes only inside the write roots, never into a cohort folder or the sample', async () => {
+    const { settings, stats } = await (await post('defaultSettings', [])).json();
+    const before = api.calls.length;
+    const run = (outDir: string) =>
+      post('startRun', [{ cohort: { dir: cohort }, settings, stats, outDir, force: true }]);
+    // The cohort itself, inside it, the sample, inside the sample's folder: all read-only.
+    for (const target of [cohort, join(cohort, 'results'), sample, join(dir, 'sample-data')]) {
+      expect((await run(target)).status, target).toBe(403);
+      expect((await post('exportRun', ['run-1', target, true])).status, target).toBe(403);
+    }
+    expect((await (await post('exportRun', ['run-1', sample, true])).json()).error).toMatch(/read-only/);
+    expect(api.calls.length).toBe(before);
+    // A cohort opened from inside the write root becomes read-only too.
+    const study = join(out, 'study');
+    mkdirSync(study);
+    expect((await post('exportRun', ['run-1', join(study, 'tables'), true])).status).toBe(200);
+    expect((await post('openCohort', [{ dir: study }])).status).toBe(200);
+    const refused = await post('exportRun', ['run-1', join(study, 'tables'), true]);
+    expect(refused.status).toBe(403);
+    expect((await refused.json()).error).toMatch(/inside the cohort folder .*read-only/);
+    expect((await run(join(out, 'results'))).status).toBe(200);
   });
 });

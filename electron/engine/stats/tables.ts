@@ -1,5 +1,5 @@
 /**
- * The rows of stats.tsv and diagram-tests.tsv as api.ts Tables (null is written as n/a).
+ * The rows of stats.tsv and diagram-tests.tsv as api.ts Tables (null is written as NA).
  * Every row carries its family, the permutation scheme, how many permutations were run and the
  * seed, so that any p-value can be reproduced from the table alone.
  *

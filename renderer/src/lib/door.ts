@@ -3,12 +3,21 @@ import { createHttpClient, type LoopwiseDoor } from '../../../electron/web-clien
 
 export function connect(win: {
   loopwise?: LoopwiseDoor;
-  location: { search: string; origin: string };
+  location: { search: string; origin: string; pathname?: string; hash?: string };
+  history?: { replaceState(data: unknown, unused: string, url?: string): void };
 }): LoopwiseDoor {
   if (win.loopwise) return win.loopwise;
-  const token = new URLSearchParams(win.location.search).get('token');
-  if (!token) {
-    throw new Error('This page needs the address printed by `npm start` (it carries the session token).');
+  // Browser mode: the server traded the address's token for an HttpOnly cookie the page's requests
+  // carry. Should an address still show the token, it leaves the address bar and history here.
+  const params = new URLSearchParams(win.location.search);
+  if (params.has('token') && win.history) {
+    params.delete('token');
+    const rest = params.toString();
+    win.history.replaceState(
+      null,
+      '',
+      `${win.location.pathname ?? '/'}${rest ? `?${rest}` : ''}${win.location.hash ?? ''}`,
+    );
   }
-  return createHttpClient({ base: '', token });
+  return createHttpClient({ base: '' });
 }

@@ -1,6 +1,6 @@
 /** Number and time formatting shared by the views. */
 
-/** A value for a table cell: missing as 'n/a' (as in the exported tables), numbers to 4 significant digits. */
+/** A value for a table cell: missing as 'n/a' on screen (the written tables say NA), numbers to 4 significant digits. */
 export function formatCell(v: string | number | null | undefined): string {
   if (v === null || v === undefined) return 'n/a';
   if (typeof v === 'string') return v;

@@ -3,11 +3,13 @@ import type {
   AnalysisSettings,
   CohortReport,
   CohortResults,
+  OpenCohortRequest,
   ProgressEvent,
   RunSummary,
   StatsSettings,
   SubjectResult,
 } from '../../../electron/api.ts';
+import type { Problem } from '../../../electron/contract.ts';
 import type { DoorInfo, LoopwiseDoor } from '../../../electron/web-client.ts';
 import { mergeFailures } from './progress.ts';
 import { defaultGroupColumn } from './study.ts';
@@ -22,6 +24,10 @@ export class Session {
   busy = $state(false);
 
   cohortDir = $state('');
+  /** The reader options the cohort is opened and analysed with (participants table, time series, …). */
+  cohortOptions = $state<Omit<OpenCohortRequest, 'dir'>>({});
+  /** Problems a door returned with its refusal (the contract's), shown under their fields. */
+  problems = $state<Problem[]>([]);
   report = $state<CohortReport | null>(null);
   settings = $state<AnalysisSettings | null>(null);
   stats = $state<StatsSettings | null>(null);
@@ -47,11 +53,14 @@ export class Session {
 
   private async attempt<T>(what: () => Promise<T>): Promise<T | undefined> {
     this.error = null;
+    this.problems = [];
     this.busy = true;
     try {
       return await what();
     } catch (e) {
       this.error = e instanceof Error ? e.message : String(e);
+      const problems = (e as { problems?: unknown }).problems;
+      if (Array.isArray(problems)) this.problems = problems as Problem[];
       return undefined;
     } finally {
       this.busy = false;
@@ -71,7 +80,7 @@ export class Session {
 
   async openCohort(dir: string): Promise<void> {
     await this.attempt(async () => {
-      const report = await this.door.openCohort({ dir });
+      const report = await this.door.openCohort({ dir, ...$state.snapshot(this.cohortOptions) });
       this.cohortDir = dir;
       this.report = report;
       this.results = null;
@@ -79,7 +88,8 @@ export class Session {
       this.progress = null;
       this.subject = null;
       this.subjectId = null;
-      if (this.stats) {
+      // A group column is proposed only while no other design (effect, model) is chosen.
+      if (this.stats && this.stats.effect === null && this.stats.model === null) {
         const choice = this.stats.groupColumn;
         const valid = choice !== null && report.columns.some((c) => c.name === choice);
         this.stats = { ...this.stats, groupColumn: valid ? choice : defaultGroupColumn(report) };
@@ -104,7 +114,10 @@ export class Session {
     this.progress = null;
     this.lastReused = 0;
     const req = {
-      cohort: { dir: this.cohortDir },
+      cohort: {
+        dir: this.cohortDir,
+        ...($state.snapshot(this.cohortOptions) as Omit<OpenCohortRequest, 'dir'>),
+      },
       settings: $state.snapshot(this.settings) as AnalysisSettings,
       stats: $state.snapshot(this.stats) as StatsSettings,
       outDir: null,
@@ -132,7 +145,9 @@ export class Session {
     await this.attempt(async () => {
       this.summary = await this.door.runSummary(runId);
       if (this.summary) this.failures = mergeFailures(this.failures, this.summary.failures);
-      if (this.summary?.status === 'done') this.results = await this.door.cohortResults(runId);
+      // A failed run may still hold what its earlier stages made (e.g. features without statistics).
+      if (this.summary && this.summary.status !== 'cancelled')
+        this.results = await this.door.cohortResults(runId);
     });
   }
 

@@ -133,3 +133,23 @@ export function cohortSummary(report: CohortReport, groupColumn: string | null):
     groups: [...groups].map(([group, count]) => ({ group, count })),
   };
 }
+
+/** Levels a reference may take: those of the categorical effect column (none for a numeric one). */
+export function referenceChoices(report: CohortReport, column: string | null): string[] {
+  const c = column ? report.columns.find((x) => x.name === column) : undefined;
+  return c && c.kind === 'categorical' ? (c.levels ?? columnLevels(report, c.name)) : [];
+}
+
+/** Columns that can define exchangeability blocks: categorical ones, participant_id first. */
+export function blockChoices(report: CohortReport): string[] {
+  const names = report.columns.filter((c) => c.kind === 'categorical').map((c) => c.name);
+  return [...names.filter((n) => n === 'participant_id'), ...names.filter((n) => n !== 'participant_id')];
+}
+
+/** Columns an effect may name: every column but identifiers, numeric (slope) or categorical. */
+export function effectChoices(report: CohortReport): string[] {
+  return report.columns
+    .filter((c) => !ID_COLUMNS.has(c.name.toLowerCase()))
+    .filter((c) => columnLevels(report, c.name).length >= 2)
+    .map((c) => c.name);
+}

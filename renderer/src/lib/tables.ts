@@ -1,5 +1,6 @@
 /** Reading the result tables by column name, and writing them back out as text. */
 import type { Table } from '../../../electron/api.ts';
+import { MISSING_SPELLINGS, MISSING_VALUE } from '../../../electron/contract.ts';
 
 export type Cell = string | number | null;
 
@@ -36,7 +37,7 @@ export function records(table: Table): Array<Record<string, Cell>> {
 
 export function asNumber(v: Cell): number | null {
   if (typeof v === 'number') return Number.isFinite(v) ? v : null;
-  if (typeof v === 'string' && v.trim() !== '' && v !== 'n/a') {
+  if (typeof v === 'string' && !MISSING_SPELLINGS.includes(v.trim())) {
     const x = Number(v);
     return Number.isFinite(x) ? x : null;
   }
@@ -44,14 +45,14 @@ export function asNumber(v: Cell): number | null {
 }
 
 function cellText(v: Cell, sep: string): string {
-  if (v === null) return 'n/a';
+  if (v === null) return MISSING_VALUE;
   if (typeof v === 'number') return v === Infinity ? 'inf' : v === -Infinity ? '-inf' : String(v);
   // RFC 4180 quoting for CSV; TSV cells cannot hold tabs or newlines, so they are replaced.
   if (sep === '\t') return v.replace(/[\t\r\n]+/g, ' ');
   return /[",\r\n]/.test(v) ? `"${v.replace(/"/g, '""')}"` : v;
 }
 
-/** The table as TSV or CSV text, missing values as 'n/a' (as the service writes them). */
+/** The table as TSV or CSV text, missing values as NA (as the service writes them). */
 export function tableText(table: Table, format: 'tsv' | 'csv' = 'tsv'): string {
   const sep = format === 'tsv' ? '\t' : ',';
   const line = (cells: Cell[]) => cells.map((c) => cellText(c, sep)).join(sep);
