@@ -6,7 +6,8 @@
 // `npm run build:node`; `npm test` and `npm run sample` run it first, and `npm ci`/`npm install`
 // run it with --force as `prepare`. Without --force it does nothing while the build is up to date.
 //
-// esbuild bundles electron/cli.ts and electron/workers/filtration-worker.ts with their npm
+// esbuild bundles electron/cli.ts and the worker entries (electron/workers/filtration-worker.ts,
+// statistics-worker.ts) with their npm
 // dependencies into ES modules; commands the CLI imports lazily become chunks of their own, so
 // `loopwise --help` loads a few kilobytes. The worker lands beside the chunks: the pool finds it at
 // ./filtration-worker.js relative to its own module. No type checking happens here (that is
@@ -72,6 +73,7 @@ export async function buildNode(root = REPO, outDir = join(root, 'dist-node')) {
     entryPoints: {
       cli: 'electron/cli.ts',
       'filtration-worker': 'electron/workers/filtration-worker.ts',
+      'statistics-worker': 'electron/workers/statistics-worker.ts',
     },
     outdir: outDir,
     bundle: true,

@@ -31,7 +31,11 @@ function electronEntries(): Plugin {
           target: 'node20',
           sourcemap: true,
           rollupOptions: {
-            input: { main: 'electron/main.ts', 'filtration-worker': 'electron/workers/filtration-worker.ts' },
+            input: {
+              main: 'electron/main.ts',
+              'filtration-worker': 'electron/workers/filtration-worker.ts',
+              'statistics-worker': 'electron/workers/statistics-worker.ts',
+            },
             external: ['electron', ...nodeBuiltins],
             output: { format: 'es', entryFileNames: '[name].js' },
           },

@@ -48,7 +48,16 @@ export interface StageContext {
   /** Writes a JSON file into the output folder (when there is one). */
   writeJson(name: string, value: unknown): Promise<string | null>;
   format: TableFormat;
-  progress(phase: ProgressEvent['phase'], done: number, total: number, message?: string): void;
+  /** `etaMs`: the stage's own estimate of the time left, when it has one. */
+  progress(
+    phase: ProgressEvent['phase'],
+    done: number,
+    total: number,
+    message?: string,
+    etaMs?: number | null,
+  ): void;
+  /** Worker threads the run may use (its `workers` setting); the statistics stage runs on as many. */
+  workers?: number;
   cancelled(): boolean;
 }
 

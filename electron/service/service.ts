@@ -433,6 +433,7 @@ export class LoopwiseService implements LoopwiseApi {
       format,
       emit: (e) => this.emit(e),
       cancelled: () => state.cancelRequested,
+      workers: this.pool?.size ?? this.options.workers ?? defaultPoolSize(),
     });
     for (const stage of ['groupFiltrations', 'features', 'statistics'] as const) {
       const hook = hooks[stage];

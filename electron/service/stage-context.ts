@@ -22,6 +22,8 @@ export interface StageContextParts {
   format: TableFormat;
   emit(e: ProgressEvent): void;
   cancelled(): boolean;
+  /** Worker threads the run may use (the statistics stage runs on as many). */
+  workers?: number;
 }
 
 export function makeStageContext(p: StageContextParts): StageContext {
@@ -74,7 +76,7 @@ export function makeStageContext(p: StageContextParts): StageContext {
       return name;
     },
     format,
-    progress: (phase, done, total, message) =>
+    progress: (phase, done, total, message, etaMs) =>
       p.emit({
         runId: p.runId,
         phase,
@@ -83,10 +85,11 @@ export function makeStageContext(p: StageContextParts): StageContext {
         reused: 0,
         currentSubject: null,
         elapsedMs: 0,
-        etaMs: null,
+        etaMs: etaMs ?? null,
         failures: [],
         ...(message !== undefined ? { message } : {}),
       }),
     cancelled: p.cancelled,
+    workers: p.workers,
   };
 }

@@ -32,17 +32,20 @@ import { computePersistence } from '../engine/persistence.ts';
 import { buildDesign } from '../engine/stats/design.ts';
 import { parseTerm } from '../engine/stats/formula.ts';
 import type { Design, DesignSpec, DesignSubject } from '../engine/stats/design.ts';
-import { diagramDistanceMatrix, metricName } from '../engine/stats/diagram-distance.ts';
-import type { DiagramMetric } from '../engine/stats/diagram-distance.ts';
+import { diagramDistanceMatrix, finiteDiagram, metricName } from '../engine/stats/diagram-distance.ts';
+import type { DiagramInput, DiagramMetric } from '../engine/stats/diagram-distance.ts';
 import { distanceRegression, jointLossTest } from '../engine/stats/diagram-tests.ts';
 import { classicalMds, umapEmbedding } from '../engine/stats/embedding.ts';
-import { testFamily } from '../engine/stats/family.ts';
+import { alignFamily, familyPermutationInputs } from '../engine/stats/family.ts';
 import type { FamilyFeature, FamilyResult, FeatureFamily } from '../engine/stats/family.ts';
+import { finishPermutationTest, preparePermutationTest } from '../engine/stats/permutation.ts';
 import { diagramTestsTable, statsTable } from '../engine/stats/tables.ts';
 import type { DiagramTestEntry } from '../engine/stats/tables.ts';
 import { toDistances } from '../engine/transform.ts';
 import type { DistanceMatrix, PersistenceResult, SquareMatrix } from '../engine/types.ts';
 import { dropRegions } from '../workers/filtration.ts';
+import { distanceRowRanges } from '../workers/statistics.ts';
+import { StatisticsPool } from '../workers/statistics-pool.ts';
 import type { CachedFiltration } from './cache.ts';
 import type { RunHooks, StageContext, StageOutput } from './hooks.ts';
 
@@ -315,89 +318,208 @@ export function cohortStages(): RunHooks {
         gridValues,
         ctx.report.nodes,
       );
-      const results: FamilyResult[] = [];
       const options = { permutations: st.permutations, seed: st.seed };
-      let done = 0;
-      for (const family of families) {
-        if (ctx.cancelled()) return {};
-        ctx.progress('statistics', done++, families.length + 1, family.name);
-        if (family.features.length === 0) continue;
-        for (const contrast of design.contrasts) {
-          const r = testFamily(design, contrast, family, options);
-          results.push(r);
-          for (const x of r.excluded) excluded.push({ family: family.name, ...x });
-        }
-      }
-      const { table: stats, warnings } = statsTable(results);
-      warnings.unshift(...design.notes);
-      if (design.excluded.length > 0) {
-        warnings.unshift(
-          `${design.excluded.length} scan(s) left out of the design: ${design.excluded.map((x) => `${x.id} (${x.reason})`).join(', ')}`,
-        );
-      }
-      await ctx.writeTable('stats', stats);
-      await ctx.writeTable('excluded-features', {
-        columns: ['family', 'feature', 'node_or_point', 'reason'],
-        rows: excluded.map((x) => [x.family, x.feature, x.nodeOrPoint, x.reason]),
-      });
-
-      // Whole-diagram tests and the subject map, per dimension.
-      ctx.progress('statistics', families.length, families.length + 1, 'diagram tests');
+      // Every family × contrast, prepared here (cheap; a design error surfaces at once).
+      const jobs = families
+        .filter((f) => f.features.length > 0)
+        .flatMap((family) => {
+          const aligned = alignFamily(design, family);
+          return design.contrasts.map((contrast) => {
+            const inputs = familyPermutationInputs(design, contrast, aligned, options);
+            const prep = preparePermutationTest(inputs.columns, contrast, aligned, inputs.options);
+            return { family, contrast, aligned, inputs, prep };
+          });
+        });
+      const dimensions = diagramsBySubject[0]?.length ?? 0;
       const position = new Map(subjects.map((s, i) => [s, i]));
       const idx = design.ids.map((id) => position.get(id)!);
-      const groupSizes =
-        design.levels.length > 0
-          ? design.levels.map((level, g) => ({ level, n: design.groupSizes[g] }))
-          : [{ level: 'all', n: design.ids.length }];
       const metric: DiagramMetric =
         idx.length <= 60 ? { kind: 'wasserstein', p: 2 } : { kind: 'sliced-wasserstein' };
-      // The joint loss compares groups only: a categorical effect without covariates or blocks.
-      const jointLoss =
-        design.effect.kind === 'categorical' &&
-        !design.exchangeability &&
-        design.columns.length === design.levels.length;
-      const entries: DiagramTestEntry[] = [];
-      let embedding: StageOutput['embedding'] = null;
-      for (let d = 0; d < (diagramsBySubject[0]?.length ?? 0); d++) {
-        const dm = diagramDistanceMatrix(
-          idx.map((i) => diagramsBySubject[i][d]),
-          metric,
+
+      // Permutation chunks and distance-matrix rows run on worker threads (as many as the run's
+      // workers); each result depends on its task alone, so the tables are the same for any count.
+      const pool = new StatisticsPool(Math.max(1, ctx.workers ?? 1));
+      const stopOnCancel = setInterval(() => {
+        if (ctx.cancelled()) void pool.terminate();
+      }, 20);
+      const rowParts = metric.kind === 'sliced-wasserstein' ? 0 : 4 * pool.size;
+      const distanceParts = rowParts > 0 ? distanceRowRanges(idx.length, rowParts).length : 0;
+      // Progress: a step per permutation chunk and family result, per distance-matrix part, per
+      // dimension's diagram tests.
+      const total = jobs.reduce((a, j) => a + j.prep.chunks + 1, 0) + dimensions * (distanceParts + 1);
+      const started = performance.now();
+      let done = 0;
+      const step = (message: string): void => {
+        done++;
+        const rate = done / (performance.now() - started);
+        ctx.progress('statistics', done, total, message, (total - done) / rate);
+      };
+      try {
+        ctx.progress('statistics', 0, total, jobs[0]?.family.name ?? 'diagram tests', null);
+        let taskId = 0;
+        const results: FamilyResult[] = await Promise.all(
+          jobs.map(async (job) => {
+            const chunks = await Promise.all(
+              Array.from({ length: job.prep.chunks }, async (_, chunk) => {
+                const reply = await pool.run({
+                  kind: 'permutation-chunks',
+                  taskId: taskId++,
+                  columns: job.inputs.columns,
+                  contrast: job.contrast,
+                  features: job.aligned,
+                  exchangeability: job.inputs.options.exchangeability,
+                  invariantColumns: job.inputs.options.invariantColumns,
+                  permutations: job.prep.requested,
+                  seed: job.prep.seed,
+                  chunks: [chunk],
+                });
+                if (reply.kind !== 'permutation-chunks') throw new Error('unexpected statistics reply');
+                step(`${job.family.name}, ${job.contrast.name}`);
+                return reply.chunks;
+              }),
+            );
+            const permutation = finishPermutationTest(job.prep, chunks.flat());
+            // The GLM and the bootstrap effect sizes of the family, on a worker too.
+            const reply = await pool.run({
+              kind: 'family-result',
+              taskId: taskId++,
+              design,
+              contrast: job.contrast,
+              family: job.family,
+              aligned: job.aligned,
+              permutation,
+              options,
+            });
+            if (reply.kind !== 'family-result') throw new Error('unexpected statistics reply');
+            step(`${job.family.name}, ${job.contrast.name}: effect sizes`);
+            return reply.result;
+          }),
         );
-        const tests = [
-          ...(jointLoss ? [jointLossTest(dm, design.group, options)] : []),
-          ...design.contrasts.map((c) =>
-            distanceRegression(dm, design.columns, c, {
-              ...options,
-              exchangeability: design.exchangeability,
-              invariantColumns: design.blockColumns,
-            }),
+        if (ctx.cancelled()) return {};
+        for (const [k, r] of results.entries())
+          for (const x of r.excluded) excluded.push({ family: jobs[k].family.name, ...x });
+        const { table: stats, warnings } = statsTable(results);
+        warnings.unshift(...design.notes);
+        if (design.excluded.length > 0) {
+          warnings.unshift(
+            `${design.excluded.length} scan(s) left out of the design: ${design.excluded.map((x) => `${x.id} (${x.reason})`).join(', ')}`,
+          );
+        }
+        await ctx.writeTable('stats', stats);
+        await ctx.writeTable('excluded-features', {
+          columns: ['family', 'feature', 'node_or_point', 'reason'],
+          rows: excluded.map((x) => [x.family, x.feature, x.nodeOrPoint, x.reason]),
+        });
+
+        // Whole-diagram tests and the subject map, per dimension.
+        const groupSizes =
+          design.levels.length > 0
+            ? design.levels.map((level, g) => ({ level, n: design.groupSizes[g] }))
+            : [{ level: 'all', n: design.ids.length }];
+        // The joint loss compares groups only: a categorical effect without covariates or blocks.
+        const jointLoss =
+          design.effect.kind === 'categorical' &&
+          !design.exchangeability &&
+          design.columns.length === design.levels.length;
+        const entries: DiagramTestEntry[] = [];
+        let embedding: StageOutput['embedding'] = null;
+        const matrices = await Promise.all(
+          Array.from({ length: dimensions }, (_, d) =>
+            distanceMatrixOnPool(
+              pool,
+              idx.map((i) => diagramsBySubject[i][d]),
+              metric,
+              rowParts,
+              () => step(`H${d} diagram distances`),
+            ),
           ),
-        ];
-        for (const test of tests) {
-          entries.push({
-            family: `H${d}`,
-            metric: metricName(metric),
-            result: test,
-            groupSizes,
-            effect: design.effect.term,
+        );
+        for (let d = 0; d < dimensions; d++) {
+          if (ctx.cancelled()) return {};
+          const dm = matrices[d];
+          const tests = [
+            ...(jointLoss ? [jointLossTest(dm, design.group, options)] : []),
+            ...design.contrasts.map((c) =>
+              distanceRegression(dm, design.columns, c, {
+                ...options,
+                exchangeability: design.exchangeability,
+                invariantColumns: design.blockColumns,
+              }),
+            ),
+          ];
+          for (const test of tests) {
+            entries.push({
+              family: `H${d}`,
+              metric: metricName(metric),
+              result: test,
+              groupSizes,
+              effect: design.effect.term,
+            });
+          }
+          if (d === 1 || (d === 0 && diagramsBySubject[0].length === 1))
+            embedding = subjectMap(dm, design, st.seed);
+          step(`H${d} diagram tests`);
+        }
+        const diagramTests = diagramTestsTable(entries);
+        await ctx.writeTable('diagram-tests', diagramTests);
+        if (embedding) {
+          // participant_id, then session where the cohort has sessions (the scan rows' shared layout).
+          await ctx.writeTable('embedding', {
+            columns: [...scanColumns(ctx), 'group', 'method', 'x', 'y'],
+            rows: embedding.map((e) => [...scanCells(ctx, e.subject), e.group, e.method, e.x, e.y]),
           });
         }
-        if (d === 1 || (d === 0 && diagramsBySubject[0].length === 1))
-          embedding = subjectMap(dm, design, st.seed);
+        if (warnings.length > 0) await ctx.writeJson('stats-warnings.json', warnings);
+        return { stats, diagramTests, embedding };
+      } catch (e) {
+        // A cancel terminates the pool: the tasks in flight reject, and the stage stops quietly.
+        if (ctx.cancelled()) return {};
+        throw e;
+      } finally {
+        clearInterval(stopOnCancel);
+        await pool.terminate();
       }
-      const diagramTests = diagramTestsTable(entries);
-      await ctx.writeTable('diagram-tests', diagramTests);
-      if (embedding) {
-        // participant_id, then session where the cohort has sessions (the scan rows' shared layout).
-        await ctx.writeTable('embedding', {
-          columns: [...scanColumns(ctx), 'group', 'method', 'x', 'y'],
-          rows: embedding.map((e) => [...scanCells(ctx, e.subject), e.group, e.method, e.x, e.y]),
-        });
-      }
-      if (warnings.length > 0) await ctx.writeJson('stats-warnings.json', warnings);
-      return { stats, diagramTests, embedding };
     },
   };
+}
+
+/**
+ * A diagram distance matrix with its pairs computed on the pool, in `parts` row ranges of similar
+ * size (each pair by the same function as in-process, so the matrix is the same to the bit); the
+ * sliced Wasserstein matrix (parts = 0) is computed here by its own method.
+ */
+async function distanceMatrixOnPool(
+  pool: StatisticsPool,
+  diagrams: DiagramInput[],
+  metric: DiagramMetric,
+  parts: number,
+  onPart: () => void,
+): Promise<SquareMatrix> {
+  if (parts === 0) return diagramDistanceMatrix(diagrams, metric);
+  const finite = diagrams.map((d, i) => {
+    try {
+      return finiteDiagram(d);
+    } catch (e) {
+      throw new Error(`diagram ${i}: ${(e as Error).message}`);
+    }
+  });
+  const n = finite.length;
+  const values = new Float64Array(n * n);
+  await Promise.all(
+    distanceRowRanges(n, parts).map(async ([from, to], k) => {
+      const reply = await pool.run({ kind: 'distance-rows', taskId: k, diagrams: finite, metric, from, to });
+      if (reply.kind !== 'distance-rows') throw new Error('unexpected statistics reply');
+      let p = 0;
+      for (let i = from; i < to; i++) {
+        for (let j = 0; j < i; j++) {
+          values[i * n + j] = reply.values[p];
+          values[j * n + i] = reply.values[p++];
+        }
+      }
+      onPart();
+    }),
+  );
+  return { n, values };
 }
 
 /**

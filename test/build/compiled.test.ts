@@ -121,6 +121,7 @@ describe('a compiled build', () => {
     const files = readdirSync(out);
     expect(files).toContain('cli.js');
     expect(files).toContain('filtration-worker.js');
+    expect(files).toContain('statistics-worker.js');
     expect(files.filter((f) => f.endsWith('.ts'))).toEqual([]);
     expect(readFileSync(join(out, STAMP_FILE), 'utf8')).toBe(JSON.stringify(sourceStamp(repo)));
   });
@@ -159,7 +160,14 @@ describe('a compiled build', () => {
     expect(a.code).toBe(0);
     const b = source(args(join(tmp, 'res-source')));
     expect(b.code).toBe(0);
-    for (const table of ['intervals.tsv', 'features.tsv', 'nodes.tsv', 'stats.tsv', 'subjects.tsv']) {
+    for (const table of [
+      'intervals.tsv',
+      'features.tsv',
+      'nodes.tsv',
+      'stats.tsv',
+      'diagram-tests.tsv',
+      'subjects.tsv',
+    ]) {
       const t = readFileSync(join(tmp, 'res-compiled', table), 'utf8');
       expect(t, table).toBe(readFileSync(join(tmp, 'res-source', table), 'utf8'));
     }

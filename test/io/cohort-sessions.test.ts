@@ -524,6 +524,6 @@ describe('the tables of a run on a cohort with sessions', () => {
     expect(features.find((r) => r[0] === 'sub-02' && r[1] === 'post')!.slice(2, 4)).toEqual(['b', '0.2']);
     // The participant without any scan is listed, without a session.
     const [, ...subjects] = read('subjects.tsv');
-    expect(subjects.find((r) => r[0] === 'sub-07')!.slice(1, 3)).toEqual(['n/a', 'excluded']);
+    expect(subjects.find((r) => r[0] === 'sub-07')!.slice(1, 3)).toEqual(['NA', 'excluded']);
   }, 120_000);
 });

@@ -55,8 +55,8 @@ describe('statistics stage', () => {
       expect(r.contrast).toBe('age');
       expect(r.test).toBe('t');
       expect(r.n_per_group).toBe('all:8');
-      expect(r.n_blocks).toBe('n/a');
-      if (r.statistic === 'n/a') continue;
+      expect(r.n_blocks).toBe('NA');
+      if (r.statistic === 'NA') continue;
       expect(r.effect_kind).toBe('partial_r');
       const t = Number(r.statistic);
       expect(Number(r.effect_size)).toBeCloseTo(t / Math.sqrt(t * t + Number(r.df)), 5);
@@ -83,7 +83,7 @@ describe('statistics stage', () => {
   it('a group with a covariate: adjusted d, distance regression and no joint loss', async () => {
     const { summary, read } = await run('group', { groupColumn: 'group', covariates: ['age'] });
     expect(summary.failures).toEqual([]);
-    const rows = read('stats.tsv').filter((r) => r.statistic !== 'n/a');
+    const rows = read('stats.tsv').filter((r) => r.statistic !== 'NA');
     expect(rows.every((r) => r.contrast === 'patient - control' && r.effect_kind === 'adjusted_d')).toBe(
       true,
     );
@@ -104,8 +104,13 @@ describe('statistics stage', () => {
   }, 120_000);
 
   it('a design error fails the statistics stage with its message; the features stay', async () => {
-    const { summary, outDir } = await run('bad', { groupColumn: 'nope' });
-    expect(summary.failures).toEqual([{ subject: '(statistics)', reason: "unknown column 'nope'" }]);
+    // Unknown columns are refused before the run (the contract); a design that cannot be fitted
+    // is found by the stage: every participant is its own level, so group is collinear with it.
+    const { summary, outDir } = await run('bad', { model: 'participant_id + group', test: 'group' });
+    expect(summary.status).toBe('failed');
+    expect(summary.failures).toHaveLength(1);
+    expect(summary.failures[0].subject).toBe('(statistics)');
+    expect(summary.failures[0].reason).toMatch(/collinear|rank/);
     expect(existsSync(join(outDir, 'features.tsv'))).toBe(true);
     expect(existsSync(join(outDir, 'stats.tsv'))).toBe(false);
   }, 120_000);

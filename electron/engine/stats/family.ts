@@ -20,7 +20,12 @@ import {
 } from './effect-size.ts';
 import { fitGlm, type GlmFit } from './glm.ts';
 import { bhQValues } from './multiple.ts';
-import { permutationTest, type PermutationTest } from './permutation.ts';
+import {
+  permutationTest,
+  type ExchangeabilityOptions,
+  type PermutationOptions,
+  type PermutationTest,
+} from './permutation.ts';
 
 export interface FamilyFeature {
   /** e.g. 'h1_total_persistence', 'participation', 'betti1'. */
@@ -72,13 +77,21 @@ export interface FamilyResult {
   warnings: string[];
 }
 
-/** Tests `contrast` on every feature of `family`. */
+/** Tests `contrast` on every feature of `family` (the permutations in this thread). */
 export function testFamily(
   design: Design,
   contrast: Contrast,
   family: FeatureFamily,
   options: FamilyOptions,
 ): FamilyResult {
+  const aligned = alignFamily(design, family);
+  const inputs = familyPermutationInputs(design, contrast, aligned, options);
+  const permutation = permutationTest(inputs.columns, contrast, aligned, inputs.options);
+  return familyResult(design, contrast, family, aligned, permutation, options);
+}
+
+/** The family's values in design-row order, one array per feature. */
+export function alignFamily(design: Design, family: FeatureFamily): Float64Array[] {
   const position = new Map(family.subjects.map((id, i) => [id, i]));
   const rowOf = design.ids.map((id) => {
     const i = position.get(id);
@@ -86,7 +99,7 @@ export function testFamily(
       throw new Error(`family '${family.name}' has no values for subject '${id}' of the design`);
     return i;
   });
-  const aligned = family.features.map((f) => {
+  return family.features.map((f) => {
     if (f.values.length !== family.subjects.length) {
       throw new Error(
         `family '${family.name}', feature '${f.feature}' ${f.nodeOrPoint ?? ''}: ${f.values.length} values for ${family.subjects.length} subjects`,
@@ -94,14 +107,45 @@ export function testFamily(
     }
     return Float64Array.from(rowOf, (i) => f.values[i]);
   });
+}
+
+/** The permutation test's inputs for a family (design columns, blocks), wherever it runs. */
+export function familyPermutationInputs(
+  design: Design,
+  contrast: Contrast,
+  aligned: Float64Array[],
+  options: FamilyOptions,
+): {
+  columns: Float64Array[];
+  contrast: Contrast;
+  features: Float64Array[];
+  options: PermutationOptions & Required<ExchangeabilityOptions>;
+} {
+  return {
+    columns: design.columns,
+    contrast,
+    features: aligned,
+    options: {
+      permutations: options.permutations,
+      seed: options.seed,
+      exchangeability: design.exchangeability ?? null,
+      invariantColumns: design.blockColumns ?? [],
+    },
+  };
+}
+
+/** The family's result from its permutation test (run here or merged from chunks run elsewhere). */
+export function familyResult(
+  design: Design,
+  contrast: Contrast,
+  family: FeatureFamily,
+  aligned: Float64Array[],
+  permutation: PermutationTest,
+  options: FamilyOptions,
+): FamilyResult {
   const ex = design.exchangeability ?? null;
   const blockColumns = design.blockColumns ?? [];
   const glm = fitGlm(design.columns, contrast, aligned);
-  const permutation = permutationTest(design.columns, contrast, aligned, {
-    ...options,
-    exchangeability: ex,
-    invariantColumns: blockColumns,
-  });
   const qFdr = bhQValues(permutation.pUncorrected);
   const { df1, df2 } = permutation;
   const partialR = Float64Array.from(permutation.statistic, (t) => (df1 === 1 ? partialRFromT(t, df2) : NaN));

@@ -42,10 +42,14 @@ import type { Contrast, Exchangeability } from './design.ts';
 import { dot, orthonormalize, solveUpperTransposed } from './linalg.ts';
 import {
   atLeast,
+  chunkCount,
+  chunkRange,
   forEachBlockPermutation,
   forEachRelabelling,
   permutationP,
+  relabellingRun,
   type RelabellingRun,
+  type VisitRange,
 } from './relabel.ts';
 
 export interface PermutationOptions {
@@ -112,8 +116,18 @@ export interface PermutationPlan {
   basis: Float64Array[];
   /** Orthonormal basis of the nuisance space (all of it). */
   qz: Float64Array[];
-  /** Visits every permutation to test; `permuted` holds the basis vectors moved by it (reused arrays). */
-  forEach(requested: number, seed: number, visit: (permuted: Float64Array[]) => void): RelabellingRun;
+  /** The run `forEach` makes, without visiting anything. */
+  run(requested: number, seed: number): RelabellingRun;
+  /**
+   * Visits every permutation to test, or those in `range` of the sequence (relabel.ts, chunks);
+   * `permuted` holds the basis vectors moved by it (reused arrays).
+   */
+  forEach(
+    requested: number,
+    seed: number,
+    visit: (permuted: Float64Array[]) => void,
+    range?: VisitRange,
+  ): RelabellingRun;
 }
 
 export function permutationPlan(
@@ -199,7 +213,11 @@ export function permutationPlan(
     scheme,
     basis,
     qz,
-    forEach(requested, seed, visit) {
+    run(requested, seed) {
+      if (ex) return forEachBlockPermutation(ex, n, requested, seed, () => {}, { from: 0, to: 0 });
+      return relabellingRun(keys, requested, seed);
+    },
+    forEach(requested, seed, visit, range) {
       const permuted = basis.map(() => new Float64Array(n));
       const move = (source: Int32Array, rep: boolean) => {
         for (let k = 0; k < basis.length; k++) {
@@ -210,30 +228,57 @@ export function permutationPlan(
         }
         visit(permuted);
       };
-      if (ex) return forEachBlockPermutation(ex, n, requested, seed, (src) => move(src, false));
-      return forEachRelabelling(keys, requested, seed, (arr) => move(arr, true));
+      if (ex) return forEachBlockPermutation(ex, n, requested, seed, (src) => move(src, false), range);
+      return forEachRelabelling(keys, requested, seed, (arr) => move(arr, true), range);
     },
   };
 }
 
-/** The permutation test of `contrast` on each feature (each aligned with the design rows). */
-export function permutationTest(
+/** What every chunk of one family's test shares: the plan, the residuals and the observed statistics. */
+export interface PreparedPermutationTest {
+  plan: PermutationPlan;
+  requested: number;
+  seed: number;
+  run: RelabellingRun;
+  /** Chunks the run is cut into (relabel.ts, PERMUTATION_CHUNK). */
+  chunks: number;
+  m: number;
+  /** Unit-normalised nuisance residuals, feature-major (m × n). */
+  rz: Float64Array;
+  valid: Uint8Array;
+  /** Observed signed t or F (NaN when left out). */
+  statistic: Float64Array;
+  /** Observed |t| or F, the value permuted ones are compared with. */
+  observed: Float64Array;
+  leftOut: Array<'non-finite' | 'no-variation' | null>;
+  warnings: string[];
+}
+
+/** One chunk's share of the test: exceedance counts per feature and the family maximum per visit. */
+export interface PermutationChunk {
+  chunk: number;
+  count: Float64Array;
+  maxima: Float64Array;
+}
+
+/** Everything before the permutations: the plan, the residuals, the observed statistics. */
+export function preparePermutationTest(
   columns: Float64Array[],
   contrast: Contrast,
   features: ArrayLike<number>[],
   options: PermutationOptions & ExchangeabilityOptions,
-): PermutationTest {
+): PreparedPermutationTest {
   const requested = options.permutations ?? DEFAULT_PERMUTATIONS;
   const warnings: string[] = [];
   const plan = permutationPlan(columns, contrast, options);
-  const { n, s, df2, plain, basis, qz } = plan;
-  const nb = basis.length;
+  const { n, qz } = plan;
+  const run = plan.run(requested, options.seed);
 
   // Unit-normalised nuisance residuals, feature-major.
   const m = features.length;
   const rz = new Float64Array(m * n);
   const valid = new Uint8Array(m);
-  const leftOut: Array<'non-finite' | 'no-variation'> = new Array(m);
+  const leftOut: Array<'non-finite' | 'no-variation' | null> = new Array(m).fill(null);
   let nonFinite = 0;
   let constant = 0;
   for (let j = 0; j < m; j++) {
@@ -264,83 +309,159 @@ export function permutationTest(
   if (constant > 0)
     warnings.push(`${constant} feature(s) without variation beyond the nuisance model were left out`);
 
-  const statOf = (dots: Float64Array): number => {
-    let ssx = 0;
-    for (let k = 0; k < s; k++) ssx += dots[k] * dots[k];
-    let rss = 1 - ssx;
-    if (!plain) for (let k = s; k < nb; k++) rss -= dots[k] * dots[k];
-    if (rss < 1e-14) rss = 1e-14;
-    return s === 1 ? dots[0] / Math.sqrt(rss / df2) : ssx / s / (rss / df2);
-  };
-  const dots = new Float64Array(nb);
-  const evaluate = (bp: Float64Array[], out: Float64Array | null, onStat: (j: number, v: number) => void) => {
-    for (let j = 0; j < m; j++) {
-      if (!valid[j]) continue;
-      const off = j * n;
-      let k = 0;
-      // Several basis vectors per pass over the feature's residuals cut the memory traffic.
-      for (; k + 3 < nb; k += 4) {
-        const b0 = bp[k];
-        const b1 = bp[k + 1];
-        const b2 = bp[k + 2];
-        const b3 = bp[k + 3];
-        let acc0 = 0;
-        let acc1 = 0;
-        let acc2 = 0;
-        let acc3 = 0;
-        for (let i = 0; i < n; i++) {
-          const v = rz[off + i];
-          acc0 += v * b0[i];
-          acc1 += v * b1[i];
-          acc2 += v * b2[i];
-          acc3 += v * b3[i];
-        }
-        dots[k] = acc0;
-        dots[k + 1] = acc1;
-        dots[k + 2] = acc2;
-        dots[k + 3] = acc3;
-      }
-      for (; k + 1 < nb; k += 2) {
-        const b0 = bp[k];
-        const b1 = bp[k + 1];
-        let acc0 = 0;
-        let acc1 = 0;
-        for (let i = 0; i < n; i++) {
-          const v = rz[off + i];
-          acc0 += v * b0[i];
-          acc1 += v * b1[i];
-        }
-        dots[k] = acc0;
-        dots[k + 1] = acc1;
-      }
-      if (k < nb) {
-        const b = bp[k];
-        let acc = 0;
-        for (let i = 0; i < n; i++) acc += rz[off + i] * b[i];
-        dots[k] = acc;
-      }
-      const v = statOf(dots);
-      if (out) out[j] = v;
-      onStat(j, s === 1 ? Math.abs(v) : v);
-    }
-  };
-
   const statistic = new Float64Array(m).fill(NaN);
   const observed = new Float64Array(m).fill(NaN);
-  evaluate(basis, statistic, (j, v) => (observed[j] = v));
-
-  const count = new Float64Array(m);
-  const maxima: number[] = [];
-  const run = plan.forEach(requested, options.seed, (permuted) => {
-    let max = -Infinity;
-    evaluate(permuted, null, (j, v) => {
-      if (atLeast(v, observed[j])) count[j]++;
-      if (v > max) max = v;
-    });
-    maxima.push(max);
+  const kernel = statisticKernel(plan, rz, valid, 1);
+  kernel.load(plan.basis, 0);
+  kernel.evaluate(1, (_b, j, v) => {
+    statistic[j] = v;
+    observed[j] = plan.s === 1 ? Math.abs(v) : v;
   });
+  return {
+    plan,
+    requested,
+    seed: options.seed,
+    run,
+    chunks: chunkCount(run.visited),
+    m,
+    rz,
+    valid,
+    statistic,
+    observed,
+    leftOut,
+    warnings,
+  };
+}
 
-  const maxNull = Float64Array.from(maxima).sort();
+/**
+ * Permutations evaluated per pass over the residuals: their permuted basis vectors (batch · nb · n
+ * numbers) stay within about 16 KiB, so they sit in the L1 cache while every feature's residuals
+ * stream past once per batch rather than once per permutation.
+ */
+function batchSize(nb: number, n: number): number {
+  return Math.max(1, Math.min(64, Math.floor(2048 / Math.max(1, nb * n))));
+}
+
+/**
+ * The statistic of every feature for a batch of permuted bases: the product of the residual matrix
+ * (m × n) with the batch's basis vectors (n × batch·nb), row by row, each dot product summed in
+ * index order (so each value is the same whatever the batch size), then t or F from the dots.
+ * All buffers are allocated once.
+ */
+function statisticKernel(plan: PermutationPlan, rz: Float64Array, valid: Uint8Array, batch: number) {
+  const { n, s, df2, plain } = plan;
+  const nb = plan.basis.length;
+  const m = valid.length;
+  const vectors = new Float64Array(batch * nb * n);
+  const dots = new Float64Array(batch * nb);
+  return {
+    batch,
+    /** Copies permuted basis vectors into slot `b` of the batch. */
+    load(bp: Float64Array[], b: number): void {
+      for (let k = 0; k < nb; k++) vectors.set(bp[k], (b * nb + k) * n);
+    },
+    /** Evaluates the first `used` slots for every valid feature. */
+    evaluate(used: number, onStat: (b: number, j: number, v: number) => void): void {
+      const cols = used * nb;
+      for (let j = 0; j < m; j++) {
+        if (!valid[j]) continue;
+        const off = j * n;
+        let c = 0;
+        for (; c + 3 < cols; c += 4) {
+          const o0 = c * n;
+          const o1 = o0 + n;
+          const o2 = o1 + n;
+          const o3 = o2 + n;
+          let acc0 = 0;
+          let acc1 = 0;
+          let acc2 = 0;
+          let acc3 = 0;
+          for (let i = 0; i < n; i++) {
+            const v = rz[off + i];
+            acc0 += v * vectors[o0 + i];
+            acc1 += v * vectors[o1 + i];
+            acc2 += v * vectors[o2 + i];
+            acc3 += v * vectors[o3 + i];
+          }
+          dots[c] = acc0;
+          dots[c + 1] = acc1;
+          dots[c + 2] = acc2;
+          dots[c + 3] = acc3;
+        }
+        for (; c < cols; c++) {
+          const o = c * n;
+          let acc = 0;
+          for (let i = 0; i < n; i++) acc += rz[off + i] * vectors[o + i];
+          dots[c] = acc;
+        }
+        for (let b = 0; b < used; b++) {
+          const d0 = b * nb;
+          let ssx = 0;
+          for (let k = 0; k < s; k++) ssx += dots[d0 + k] * dots[d0 + k];
+          let rss = 1 - ssx;
+          if (!plain) for (let k = s; k < nb; k++) rss -= dots[d0 + k] * dots[d0 + k];
+          if (rss < 1e-14) rss = 1e-14;
+          onStat(b, j, s === 1 ? dots[d0] / Math.sqrt(rss / df2) : ssx / s / (rss / df2));
+        }
+      }
+    },
+  };
+}
+
+/** Runs one chunk of the prepared test (any chunk, on any thread: the result depends on the chunk alone). */
+export function permutationChunk(prep: PreparedPermutationTest, chunk: number): PermutationChunk {
+  const { plan, m, valid, observed } = prep;
+  const range: VisitRange = chunkRange(chunk, prep.run.visited);
+  const count = new Float64Array(m);
+  const maxima = new Float64Array(range.to - range.from).fill(-Infinity);
+  const kernel = statisticKernel(plan, prep.rz, valid, batchSize(plan.basis.length, plan.n));
+  let filled = 0;
+  let base = 0;
+  const abs = plan.s === 1;
+  const onStat = (b: number, j: number, v: number): void => {
+    const x = abs ? Math.abs(v) : v;
+    if (atLeast(x, observed[j])) count[j]++;
+    if (x > maxima[base + b]) maxima[base + b] = x;
+  };
+  plan.forEach(
+    prep.requested,
+    prep.seed,
+    (permuted) => {
+      kernel.load(permuted, filled++);
+      if (filled === kernel.batch) {
+        kernel.evaluate(filled, onStat);
+        base += filled;
+        filled = 0;
+      }
+    },
+    range,
+  );
+  if (filled > 0) kernel.evaluate(filled, onStat);
+  return { chunk, count, maxima };
+}
+
+/** Merges the chunks (every chunk once, in any order) into the test's p-values. */
+export function finishPermutationTest(
+  prep: PreparedPermutationTest,
+  chunks: PermutationChunk[],
+): PermutationTest {
+  const { plan, m, valid, observed, run } = prep;
+  const byIndex = new Array<PermutationChunk | undefined>(prep.chunks);
+  for (const c of chunks) {
+    if (!(c.chunk >= 0 && c.chunk < prep.chunks) || byIndex[c.chunk])
+      throw new Error(`permutation chunk ${c.chunk} is out of range or repeated`);
+    byIndex[c.chunk] = c;
+  }
+  const count = new Float64Array(m);
+  const maxNull = new Float64Array(run.visited);
+  for (let c = 0; c < prep.chunks; c++) {
+    const part = byIndex[c];
+    if (!part) throw new Error(`permutation chunk ${c} is missing`);
+    // Counts are whole numbers: their sum is exact in any order.
+    for (let j = 0; j < m; j++) count[j] += part.count[j];
+    maxNull.set(part.maxima, chunkRange(c, run.visited).from);
+  }
+  maxNull.sort();
   const pUncorrected = new Float64Array(m).fill(NaN);
   const pFwer = new Float64Array(m).fill(NaN);
   for (let j = 0; j < m; j++) {
@@ -348,6 +469,7 @@ export function permutationTest(
     pUncorrected[j] = permutationP(count[j], run);
     pFwer[j] = permutationP(maxNull.length - lowerBound(maxNull, observed[j]), run);
   }
+  const warnings = [...prep.warnings];
   const smallestP = run.mode === 'exact' ? 1 / run.visited : 1 / (1 + run.visited);
   if (run.distinct < FEW_RELABELLINGS) {
     warnings.push(
@@ -355,20 +477,32 @@ export function permutationTest(
     );
   }
   return {
-    kind: s === 1 ? 't' : 'F',
+    kind: plan.s === 1 ? 't' : 'F',
     scheme: plan.scheme,
-    statistic,
+    statistic: prep.statistic,
     pUncorrected,
     pFwer,
-    df1: s,
-    df2,
+    df1: plan.s,
+    df2: plan.df2,
     run,
-    requested,
+    requested: prep.requested,
     smallestP,
     maxNull,
     warnings,
-    leftOut: leftOut.map((x, j) => (valid[j] ? null : x)),
+    leftOut: prep.leftOut,
   };
+}
+
+/** The permutation test of `contrast` on each feature (each aligned with the design rows), all chunks in this thread. */
+export function permutationTest(
+  columns: Float64Array[],
+  contrast: Contrast,
+  features: ArrayLike<number>[],
+  options: PermutationOptions & ExchangeabilityOptions,
+): PermutationTest {
+  const prep = preparePermutationTest(columns, contrast, features, options);
+  const chunks = Array.from({ length: prep.chunks }, (_, c) => permutationChunk(prep, c));
+  return finishPermutationTest(prep, chunks);
 }
 
 /** First index whose value counts as at least `v` (sorted ascending). */

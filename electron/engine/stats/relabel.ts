@@ -6,9 +6,16 @@
  * counted separately, as in p = (1 + #{T* ≥ T}) / (1 + B) (Phipson & Smyth 2010, "Permutation
  * p-values should never be zero", Stat. Appl. Genet. Mol. Biol.; Winkler et al. 2014, NeuroImage).
  *
+ * Chunks: the sequence of visited arrangements is cut into chunks of PERMUTATION_CHUNK. Random
+ * draws of chunk c come from their own stream, seeded from (seed, c) alone (chunkSeed; chunk 0 is
+ * the seed's own stream), each chunk starting again from the sorted-as-given labels; exact
+ * enumeration is cut by index ranges of the lexicographic order. So any range of chunks can be
+ * visited on its own (e.g. on another thread) and the union over all chunks is the same set of
+ * arrangements, in the same order, whatever the split.
+ *
  *   distinctArrangements([0, 0, 1, 1, 1])  // C(5, 2) = 10
  */
-import { createRng, shuffle } from '../random.ts';
+import { createRng, shuffle, type Rng } from '../random.ts';
 import { logGamma } from './special.ts';
 
 /** n! / ∏ count_k!, the number of distinct arrangements of a multiset (Infinity past 2^53). */
@@ -21,6 +28,77 @@ export function distinctArrangements(keys: ArrayLike<number>): number {
   return v > 2 ** 53 ? Infinity : Math.round(v);
 }
 
+/** Arrangements per chunk; chunk c covers the visits [c · PERMUTATION_CHUNK, (c + 1) · PERMUTATION_CHUNK). */
+export const PERMUTATION_CHUNK = 256;
+
+/** A range of visits [from, to) of the whole sequence (chunk boundaries, in practice). */
+export interface VisitRange {
+  from: number;
+  to: number;
+}
+
+/**
+ * The seed of chunk c's random stream: the run's seed for chunk 0, otherwise a bijective 32-bit
+ * mix (the MurmurHash3 finaliser, common practice) of the seed and the chunk index, so that the
+ * chunks of one run draw from distinct streams.
+ */
+export function chunkSeed(seed: number, chunk: number): number {
+  if (chunk === 0) return seed;
+  let h = ((seed >>> 0) ^ Math.imul(chunk, 0x9e3779b9)) >>> 0;
+  h = Math.imul(h ^ (h >>> 16), 0x85ebca6b) >>> 0;
+  h = Math.imul(h ^ (h >>> 13), 0xc2b2ae35) >>> 0;
+  return (h ^ (h >>> 16)) >>> 0;
+}
+
+/** The number of chunks a run of `total` visits is cut into. */
+export function chunkCount(total: number): number {
+  return Math.ceil(total / PERMUTATION_CHUNK);
+}
+
+/** The visits of chunk `chunk` (of a run of `total` visits). */
+export function chunkRange(chunk: number, total: number): VisitRange {
+  return { from: chunk * PERMUTATION_CHUNK, to: Math.min(total, (chunk + 1) * PERMUTATION_CHUNK) };
+}
+
+function checkRequested(requested: number): void {
+  if (!Number.isInteger(requested) || requested < 1) {
+    throw new Error(`number of permutations must be a positive integer; got ${requested}`);
+  }
+}
+
+function checkRange(range: VisitRange, total: number): VisitRange {
+  if (!(Number.isInteger(range.from) && Number.isInteger(range.to) && 0 <= range.from && range.to <= total))
+    throw new Error(`visit range [${range.from}, ${range.to}) is outside [0, ${total})`);
+  return range;
+}
+
+/**
+ * Random draws of the visits in `range`: for each chunk it touches, the chunk's stream, with
+ * `reset` restoring the starting arrangement and `draw` making one arrangement from the stream.
+ */
+function randomVisits(
+  seed: number,
+  range: VisitRange,
+  reset: () => void,
+  draw: (rng: Rng) => void,
+  visit: () => void,
+): void {
+  let b = range.from;
+  while (b < range.to) {
+    const chunk = Math.floor(b / PERMUTATION_CHUNK);
+    const rng = createRng(chunkSeed(seed, chunk));
+    reset();
+    const start = chunk * PERMUTATION_CHUNK;
+    const end = Math.min(range.to, start + PERMUTATION_CHUNK);
+    // Draws before the range within the chunk are made and skipped, so the stream stays the chunk's.
+    for (let k = start; k < b; k++) draw(rng);
+    for (; b < end; b++) {
+      draw(rng);
+      visit();
+    }
+  }
+}
+
 export interface RelabellingRun {
   mode: 'exact' | 'random';
   /** Arrangements visited: all distinct ones (exact) or the random draws, not counting the identity (random). */
@@ -29,36 +107,46 @@ export interface RelabellingRun {
   seed: number;
 }
 
+/** The run `forEachRelabelling` makes for these labels, without visiting anything. */
+export function relabellingRun(keys: ArrayLike<number>, requested: number, seed: number): RelabellingRun {
+  checkRequested(requested);
+  const distinct = distinctArrangements(keys);
+  return distinct <= requested
+    ? { mode: 'exact', visited: distinct, distinct, seed }
+    : { mode: 'random', visited: requested, distinct, seed };
+}
+
 /**
  * Calls `visit` with each arrangement of `keys` to be tested (the array is reused between
- * calls: copy it to keep it).
+ * calls: copy it to keep it), or only with those in `range` of the run's sequence; the run
+ * returned describes the whole sequence either way.
  */
 export function forEachRelabelling(
   keys: ArrayLike<number>,
   requested: number,
   seed: number,
   visit: (arrangement: Int32Array) => void,
+  range?: VisitRange,
 ): RelabellingRun {
-  if (!Number.isInteger(requested) || requested < 1) {
-    throw new Error(`number of permutations must be a positive integer; got ${requested}`);
-  }
-  const distinct = distinctArrangements(keys);
+  const run = relabellingRun(keys, requested, seed);
+  const { from, to } = checkRange(range ?? { from: 0, to: run.visited }, run.visited);
   const arr = Int32Array.from(keys);
-  if (distinct <= requested) {
+  if (run.mode === 'exact') {
     arr.sort();
-    let visited = 0;
-    do {
-      visit(arr);
-      visited++;
-    } while (nextArrangement(arr));
-    return { mode: 'exact', visited, distinct, seed };
+    for (let k = 0; k < to; k++) {
+      if (k >= from) visit(arr);
+      nextArrangement(arr);
+    }
+    return run;
   }
-  const rng = createRng(seed);
-  for (let b = 0; b < requested; b++) {
-    shuffle(arr, rng);
-    visit(arr);
-  }
-  return { mode: 'random', visited: requested, distinct, seed };
+  randomVisits(
+    seed,
+    { from, to },
+    () => arr.set(keys as ArrayLike<number>),
+    (rng) => shuffle(arr, rng),
+    () => visit(arr),
+  );
+  return run;
 }
 
 /** Next lexicographic arrangement in place (Knuth, TAOCP 4A, Algorithm 7.2.1.2L); false after the last. */
@@ -112,10 +200,9 @@ export function forEachBlockPermutation(
   requested: number,
   seed: number,
   visit: (source: Int32Array) => void,
+  range?: VisitRange,
 ): RelabellingRun {
-  if (!Number.isInteger(requested) || requested < 1) {
-    throw new Error(`number of permutations must be a positive integer; got ${requested}`);
-  }
+  checkRequested(requested);
   const within = ex.scheme !== 'whole-blocks';
   const whole = ex.scheme !== 'within-blocks';
   const nb = ex.members.length;
@@ -142,13 +229,13 @@ export function forEachBlockPermutation(
   const withinBlocks = within ? ex.members.map((m, b) => (m.length > 1 ? b : -1)).filter((b) => b >= 0) : [];
   const source = new Int32Array(n);
   const blockTarget = Int32Array.from({ length: nb }, (_, b) => b);
+  // Within-block moves inside the block that arrives (the state arrays are only ever changed in place).
+  const withinOf = new Map<number, Int32Array>();
+  withinBlocks.forEach((b, f) => withinOf.set(b, state[classMembers.length + f]));
   const compose = () => {
     // Whole-block moves: block b's place is taken by block blockTarget[b].
     for (let b = 0; b < nb; b++) blockTarget[b] = b;
     classMembers.forEach((bs, f) => bs.forEach((b, k) => (blockTarget[b] = bs[state[f][k]])));
-    // Within-block moves inside the block that arrives.
-    const withinOf = new Map<number, Int32Array>();
-    withinBlocks.forEach((b, f) => withinOf.set(b, state[classMembers.length + f]));
     for (let b = 0; b < nb; b++) {
       const dst = ex.members[b];
       const srcBlock = blockTarget[b];
@@ -158,24 +245,30 @@ export function forEachBlockPermutation(
     }
     visit(source);
   };
-  if (distinct <= requested) {
-    let visited = 0;
-    for (;;) {
-      compose();
-      visited++;
+  const run: RelabellingRun =
+    distinct <= requested
+      ? { mode: 'exact', visited: distinct, distinct, seed }
+      : { mode: 'random', visited: requested, distinct, seed };
+  const { from, to } = checkRange(range ?? { from: 0, to: run.visited }, run.visited);
+  if (run.mode === 'exact') {
+    for (let k = 0; k < to; k++) {
+      if (k >= from) compose();
       let f = 0;
       for (; f < state.length; f++) {
         if (nextArrangement(state[f])) break;
         state[f].sort();
       }
-      if (f === state.length) break;
     }
-    return { mode: 'exact', visited, distinct, seed };
+    return run;
   }
-  const rng = createRng(seed);
-  for (let b = 0; b < requested; b++) {
-    for (const s of state) shuffle(s, rng);
-    compose();
-  }
-  return { mode: 'random', visited: requested, distinct, seed };
+  randomVisits(
+    seed,
+    { from, to },
+    () => state.forEach((s) => s.forEach((_, i) => (s[i] = i))),
+    (rng) => {
+      for (const s of state) shuffle(s, rng);
+    },
+    compose,
+  );
+  return run;
 }
