@@ -209,3 +209,47 @@ describe('Study design and readers', () => {
     expect(shown).toEqual(["no column 'agee' in the participants table; available: group, age, sex"]);
   });
 });
+
+describe('a run whose events arrive before its id', () => {
+  it('keeps every event the service sent before startRun answered (a run from the cache can finish first)', async () => {
+    const api = createFakeApi({ root: '/data/sample' });
+    const base = door(api);
+    const listeners: Array<(e: import('../../electron/api.ts').ProgressEvent) => void> = [];
+    // As the service does: the run starts (here: runs to the end) before the call returns its id.
+    const early: LoopwiseDoor = {
+      ...base,
+      onProgress: (l) => {
+        listeners.push(l);
+        return base.onProgress(l);
+      },
+      startRun: async (req) => {
+        const { runId } = await base.startRun(req);
+        await api.cancelRun(runId); // the fake's own timed events stay out of the way
+        const ids = ['sub-01', 'sub-02', 'sub-03'];
+        const event = { runId, total: 3, elapsedMs: 1, etaMs: 0, failures: [] };
+        ids.forEach((id, i) =>
+          listeners.forEach((l) =>
+            l({ ...event, phase: 'filtrations', done: i + 1, reused: i + 1, currentSubject: id }),
+          ),
+        );
+        listeners.forEach((l) => l({ ...event, phase: 'done', done: 3, reused: 3, currentSubject: null }));
+        return { runId };
+      },
+    };
+    const session = new Session(early);
+    await session.init();
+    await session.openCohort('/data/sample');
+    await session.startRun();
+    await waitFor(() => expect(session.summary).not.toBeNull());
+    // The second run: its events come while the session still holds the first run's id.
+    await session.startRun();
+    expect(session.runId).toBe('run-2');
+    expect(session.seen).toEqual([
+      { subject: 'sub-01', cached: true },
+      { subject: 'sub-02', cached: true },
+      { subject: 'sub-03', cached: true },
+    ]);
+    expect(session.progress?.phase).toBe('done');
+    await waitFor(() => expect(session.summary).not.toBeNull());
+  });
+});

@@ -45,6 +45,11 @@ export class Session {
   subject = $state<SubjectResult | null>(null);
 
   private lastReused = 0;
+  /**
+   * Events that arrive while a run is being started, before its id is known: the service starts
+   * the run before it answers, so a run from the cache can be far along (or done) by then.
+   */
+  private early: ProgressEvent[] | null = null;
 
   constructor(door: LoopwiseDoor) {
     this.door = door;
@@ -118,8 +123,14 @@ export class Session {
       stats: $state.snapshot(this.stats) as StatsSettings,
       outDir: null,
     };
+    this.runId = null;
+    this.early = [];
     const started = await this.attempt(() => this.door.startRun(req));
-    if (started) this.runId = started.runId;
+    const early = this.early;
+    this.early = null;
+    if (!started) return;
+    this.runId = started.runId;
+    for (const e of early) if (e.runId === started.runId) this.onProgress(e);
   }
 
   async cancelRun(): Promise<void> {
@@ -127,6 +138,10 @@ export class Session {
   }
 
   private onProgress(e: ProgressEvent): void {
+    if (this.early) {
+      this.early.push(e);
+      return;
+    }
     if (this.runId !== null && e.runId !== this.runId) return;
     this.progress = e;
     this.failures = mergeFailures(this.failures, e.failures);
