@@ -103,6 +103,17 @@ describe('statistics stage', () => {
     );
   }, 120_000);
 
+  it('a --model groups the curves by the categorical column of its --test term, none for a numeric one', async () => {
+    const byGroup = await run('model-group', { model: 'group + age', test: 'group' });
+    expect(byGroup.summary.failures).toEqual([]);
+    expect(new Set(byGroup.read('group-curves.tsv').map((r) => r.group))).toEqual(
+      new Set(['control', 'patient']),
+    );
+    const byAge = await run('model-age', { model: 'group + age', test: 'age' });
+    expect(byAge.summary.failures).toEqual([]);
+    expect(new Set(byAge.read('group-curves.tsv').map((r) => r.group))).toEqual(new Set(['all']));
+  }, 120_000);
+
   it('a design error fails the statistics stage with its message; the features stay', async () => {
     // Unknown columns are refused before the run (the contract); a design that cannot be fitted
     // is found by the stage: every participant is its own level, so group is collinear with it.
