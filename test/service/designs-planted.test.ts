@@ -69,7 +69,14 @@ async function analyze(cohort: string, name: string, design: string[]) {
   const out = join(root, `out-${name}`);
   let err = '';
   const code = await main(
-    ['analyze', cohort, '--out', out, '--workers', '1', '--permutations', '999', '--seed', '11', ...design],
+    // One filtration cache for every run: a second design on a cohort reuses its filtrations. A
+    // coarse grid and one landscape level keep the curve families small; the node families judged
+    // here do not depend on either.
+    [
+      ...['analyze', cohort, '--out', out, '--cache', join(root, 'cache'), '--workers', '1'],
+      ...['--permutations', '999', '--seed', '11', '--grid-points', '20', '--landscape-levels', '1'],
+      ...design,
+    ],
     { out: () => {}, err: (t) => (err += t) },
   );
   return { code, err, out, read: (file: string) => readTsv(join(out, file)) };
