@@ -12,6 +12,7 @@ import type { AnalysisSettings, OpenCohortRequest, StatsSettings } from '../api.
 import {
   DEFAULT_TRANSFORM,
   INPUT_KINDS,
+  defaultAnalysisSettings,
   TRANSFORMS_FOR,
   problemText,
   validateAnalysisSettings,
@@ -100,7 +101,7 @@ export function filtrationOptions(p: ParsedArgs): FiltrationOptions {
         ? { kind: 'density', value: capDensity }
         : { kind: 'none' };
   const out = { input, transform, maxDim: maxDim as 1 | 2, cap };
-  const problems = validateAnalysisSettings({ ...defaultsForCheck(), ...out }).filter((x) =>
+  const problems = validateAnalysisSettings({ ...defaultAnalysisSettings(), ...out }).filter((x) =>
     ['settings.input', 'settings.transform', 'settings.maxDim', 'settings.cap'].includes(x.field),
   );
   // The transform/input clash in the words the flags use.
@@ -113,21 +114,6 @@ export function filtrationOptions(p: ParsedArgs): FiltrationOptions {
     );
   refuseProblems(problems);
   return out;
-}
-
-function defaultsForCheck(): AnalysisSettings {
-  return {
-    input: 'correlation',
-    transform: 'one-minus',
-    maxDim: 1,
-    cap: { kind: 'none' },
-    representatives: true,
-    persistenceFloor: 0,
-    gridPoints: 100,
-    gridRange: null,
-    landscapeLevels: 3,
-    dropRegions: [],
-  };
 }
 
 /** --grid-range LO,HI, --grid-points K, --floor X, --landscape-levels L: only those given. */

@@ -24,7 +24,8 @@ function tempPath(file: string): string {
   return join(dirname(file), `.${basename(file)}${TEMP_MARK}${tag}`);
 }
 
-function isAlive(pid: number): boolean {
+/** Whether a process of this host with that id is running (EPERM: it runs under another user). */
+export function isAlive(pid: number): boolean {
   try {
     process.kill(pid, 0);
     return true;

@@ -19,7 +19,7 @@
 import { lstat, mkdir, open, readFile, readdir, rm } from 'node:fs/promises';
 import { hostname } from 'node:os';
 import { join } from 'node:path';
-import { asWriteError, openAtomicWriter, removeStaleTemps, writeFileAtomic } from './atomic.ts';
+import { asWriteError, isAlive, openAtomicWriter, removeStaleTemps, writeFileAtomic } from './atomic.ts';
 import type { AtomicWriter } from './atomic.ts';
 import { outputOverlapsInputs } from './confine.ts';
 
@@ -55,15 +55,6 @@ interface LockInfo {
 }
 
 const HOST = hostname();
-
-function isAlive(pid: number): boolean {
-  try {
-    process.kill(pid, 0);
-    return true;
-  } catch (e) {
-    return (e as NodeJS.ErrnoException).code === 'EPERM';
-  }
-}
 
 async function readJson<T>(file: string): Promise<T | null> {
   try {
