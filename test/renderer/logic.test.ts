@@ -268,6 +268,26 @@ describe('Regions', () => {
       significant: 1,
     });
   });
+
+  it('draws the tested model’s effect size from stats.tsv where the run tested the node, named by its kind', () => {
+    // A paired design: the service's d_z for L1 and L2 (its own model), not the renderer's pooled g.
+    const stats: Table = {
+      columns: ['family', 'feature', 'node_or_point', 'p_fwer', 'effect_kind', 'effect_size'],
+      rows: [
+        ['nodes:strength', 'strength', 'L1', 0.01, 'd_z', -2.5],
+        ['nodes:strength', 'strength', 'L2', 0.5, 'd_z', 0.3],
+      ],
+    };
+    const effects = nodeEffects(scores, groupOf, 'A', 'B', stats);
+    const l1 = effects.find((e) => e.label === 'L1')!;
+    expect([l1.tested, l1.effectKind]).toEqual([-2.5, 'd_z']);
+    expect(l1.g).toBeCloseTo(1.0658, 4); // the descriptive g stays for the hover-free summaries
+    expect(ranked(effects, 'strength').map((e) => e.label)).toEqual(['L1', 'L2']);
+    const fig = rankedBarFigure(effects, 'strength', 'A', 'B');
+    expect((fig.data[0] as { x: number[] }).x).toEqual([0.3, -2.5]);
+    expect(JSON.stringify(fig.layout)).toContain('d_z (paired), from the tested model');
+    expect(JSON.stringify(fig.layout)).not.toContain("Hedges' g");
+  });
 });
 
 describe('Node layouts', () => {

@@ -19,6 +19,12 @@ export interface NodeEffect {
   nB: number;
   /** Corrected p from the run's statistics, when they tested this node and measure. */
   pCorrected: number | null;
+  /**
+   * The effect size the run's statistics report for this node and measure (from the tested model:
+   * adjusted d, d_z, partial r or partial η², named by `effectKind`), or null when untested.
+   */
+  tested: number | null;
+  effectKind: string | null;
   significant: boolean;
 }
 
@@ -69,6 +75,44 @@ export function nodePValues(
   return out;
 }
 
+/** Human names of the statistics' effect-size kinds (the `effect_kind` column of stats.tsv). */
+export const EFFECT_KIND_NAMES: Record<string, string> = {
+  adjusted_d: 'adjusted d',
+  d_z: 'd_z (paired)',
+  partial_r: 'partial r',
+  partial_eta_squared: 'partial η²',
+};
+
+/** The effect size and its kind per (measure, node label) from the stats table's node families. */
+export function nodeTestedEffects(stats: Table | null): Map<string, { value: number; kind: string }> {
+  const out = new Map<string, { value: number; kind: string }>();
+  if (!stats) return out;
+  const familyCol = findColumn(stats, ['family']);
+  const nodeCol = findColumn(stats, ['node_or_point']);
+  const sizeCol = findColumn(stats, ['effect_size']);
+  const kindCol = findColumn(stats, ['effect_kind']);
+  if (!familyCol || !nodeCol || !sizeCol || !kindCol) return out;
+  for (const r of records(stats)) {
+    const family = String(r[familyCol] ?? '');
+    const value = asNumber(r[sizeCol]);
+    if (!family.startsWith('nodes:') || value === null) continue;
+    const key = `${family.slice(6)}\u0000${r[nodeCol]}`;
+    if (!out.has(key)) out.set(key, { value, kind: String(r[kindCol]) });
+  }
+  return out;
+}
+
+/** The value the Regions view ranks and draws: the tested model's effect size when there is one, else Hedges' g. */
+export function shownEffect(e: NodeEffect): number {
+  return e.tested ?? e.g;
+}
+
+/** The name of what the Regions view draws for a measure. */
+export function shownEffectName(effects: NodeEffect[], measure: string): string {
+  const kind = effects.find((e) => e.measure === measure && e.effectKind)?.effectKind ?? null;
+  return kind ? `${EFFECT_KIND_NAMES[kind] ?? kind}, from the tested model` : "Hedges' g";
+}
+
 /**
  * Group differences of every node and measure between groups A (reference) and B, from the long
  * node-score table and each subject's group. Significance is read from the run's corrected p-values
@@ -116,9 +160,11 @@ export function nodeEffects(
     (g === groupA ? c.a : c.b).push(v);
   }
   const ps = nodePValues(stats, [groupA, groupB]);
+  const tested = nodeTestedEffects(stats);
   return [...cells.values()].map((c) => {
     const mean = (x: number[]) => (x.length ? x.reduce((s, v) => s + v, 0) / x.length : NaN);
     const p = ps.get(`${c.measure}\u0000${c.label}`) ?? ps.get(`${c.measure}\u0000${c.node}`) ?? null;
+    const t = tested.get(`${c.measure}\u0000${c.label}`) ?? tested.get(`${c.measure}\u0000${c.node}`) ?? null;
     return {
       node: c.node,
       label: c.label,
@@ -130,14 +176,16 @@ export function nodeEffects(
       nA: c.a.length,
       nB: c.b.length,
       pCorrected: p,
+      tested: t?.value ?? null,
+      effectKind: t?.kind ?? null,
       significant: p !== null && p < alpha,
     };
   });
 }
 
-/** One measure's effects, largest |g| first (undefined effects last). */
+/** One measure's effects, largest |shown effect| first (undefined effects last). */
 export function ranked(effects: NodeEffect[], measure: string): NodeEffect[] {
-  const key = (e: NodeEffect) => (Number.isFinite(e.g) ? Math.abs(e.g) : -1);
+  const key = (e: NodeEffect) => (Number.isFinite(shownEffect(e)) ? Math.abs(shownEffect(e)) : -1);
   return effects.filter((e) => e.measure === measure).sort((x, y) => key(y) - key(x) || x.node - y.node);
 }
 
@@ -150,33 +198,39 @@ export function rankedBarFigure(
   top = 40,
 ): Figure {
   const rows = ranked(effects, measure).slice(0, top).reverse();
+  const name = shownEffectName(effects, measure);
+  const value = (e: NodeEffect) => shownEffect(e);
   return {
     name: `regions-${measure}`,
     data: [
       {
         type: 'bar',
         orientation: 'h',
-        x: rows.map((e) => (Number.isFinite(e.g) ? e.g : 0)),
+        x: rows.map((e) => (Number.isFinite(value(e)) ? value(e) : 0)),
         y: rows.map((e) => (e.significant ? `${e.label} *` : e.label)),
         marker: {
-          color: rows.map((e) => (e.g >= 0 ? '#D55E00' : '#0072B2')),
+          color: rows.map((e) => (value(e) >= 0 ? '#D55E00' : '#0072B2')),
           line: { color: rows.map((e) => (e.significant ? '#000' : 'rgba(0,0,0,0)')), width: 2 },
         },
         customdata: rows.map((e) => [e.pCorrected ?? 'not tested', e.network ?? '']),
-        hovertemplate:
-          '%{y}: g = %{x:.3f}<br>corrected p: %{customdata[0]}<br>%{customdata[1]}<extra></extra>',
+        hovertemplate: `%{y}: ${name} = %{x:.3f}<br>corrected p: %{customdata[0]}<br>%{customdata[1]}<extra></extra>`,
       },
     ],
-    layout: baseLayout(`${measure}: ${groupB} − ${groupA} (Hedges' g; * corrected p < 0.05)`, {
-      height: Math.max(320, 18 * rows.length + 90),
-      margin: { l: 140, r: 20, t: 40, b: 50 },
-      xaxis: { title: { text: "Hedges' g" }, zeroline: true },
-      yaxis: { automargin: true },
-    }),
+    layout: baseLayout(
+      name === "Hedges' g"
+        ? `${measure}: ${groupB} − ${groupA} (Hedges' g; * corrected p < 0.05)`
+        : `${measure}: ${name} (* corrected p < 0.05)`,
+      {
+        height: Math.max(320, 18 * rows.length + 90),
+        margin: { l: 140, r: 20, t: 40, b: 50 },
+        xaxis: { title: { text: name }, zeroline: true },
+        yaxis: { automargin: true },
+      },
+    ),
   };
 }
 
-/** Nodes on a layout, sized by |g| and coloured by g (diverging, symmetric about 0). */
+/** Nodes on a layout, sized and coloured by the shown effect (the tested model's, else Hedges' g; diverging, symmetric about 0). */
 export function nodeMapFigure(
   layout: NodeLayout,
   effects: NodeEffect[],
@@ -184,7 +238,12 @@ export function nodeMapFigure(
   nodes: NodeInfo[],
 ): Figure {
   const byNode = new Map(effects.filter((e) => e.measure === measure).map((e) => [e.node, e]));
-  const g = layout.nodes.map((n) => byNode.get(n.index)?.g ?? NaN);
+  const shown = byNode.get(layout.nodes[0]?.index ?? -1);
+  const name = shown ? shownEffectName(effects, measure) : "Hedges' g";
+  const g = layout.nodes.map((n) => {
+    const e = byNode.get(n.index);
+    return e ? shownEffect(e) : NaN;
+  });
   const maxAbs = Math.max(1e-9, ...g.filter(Number.isFinite).map(Math.abs));
   const sig = layout.nodes.map((n) => byNode.get(n.index)?.significant ?? false);
   const circle = layout.kind === 'circle';
@@ -196,7 +255,7 @@ export function nodeMapFigure(
       y: layout.nodes.map((n) => n.y),
       text: layout.nodes.map((n) => `${n.label}${n.network ? ` (${n.network})` : ''}`),
       customdata: g.map((v) => (Number.isFinite(v) ? v.toFixed(3) : 'n/a')),
-      hovertemplate: '%{text}<br>g = %{customdata}<extra></extra>',
+      hovertemplate: `%{text}<br>${name} = %{customdata}<extra></extra>`,
       marker: {
         size: g.map((v) => 6 + 18 * (Number.isFinite(v) ? Math.abs(v) / maxAbs : 0)),
         color: g.map((v) => (Number.isFinite(v) ? v : 0)),
