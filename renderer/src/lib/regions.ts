@@ -238,8 +238,7 @@ export function nodeMapFigure(
   nodes: NodeInfo[],
 ): Figure {
   const byNode = new Map(effects.filter((e) => e.measure === measure).map((e) => [e.node, e]));
-  const shown = byNode.get(layout.nodes[0]?.index ?? -1);
-  const name = shown ? shownEffectName(effects, measure) : "Hedges' g";
+  const name = shownEffectName(effects, measure);
   const g = layout.nodes.map((n) => {
     const e = byNode.get(n.index);
     return e ? shownEffect(e) : NaN;
@@ -262,7 +261,7 @@ export function nodeMapFigure(
         colorscale: 'RdBu',
         cmin: -maxAbs,
         cmax: maxAbs,
-        colorbar: { title: { text: 'g' }, thickness: 12 },
+        colorbar: { title: { text: name === "Hedges' g" ? 'g' : name.split(',')[0] }, thickness: 12 },
         line: { color: sig.map((s) => (s ? '#000' : '#fff')), width: sig.map((s) => (s ? 2.5 : 1)) },
       },
       showlegend: false,
