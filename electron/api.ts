@@ -148,6 +148,11 @@ export interface RunSummary {
   reused: number;
   failures: Array<{ subject: string; reason: string }>;
   outDir: string | null;
+  /**
+   * What the cohort check flagged but did not exclude a subject for, and problems with the study's
+   * own tables (e.g. an unreadable node table), so that no run reads its input wrongly in silence.
+   */
+  findings?: QcFinding[];
   /** Subjects the cohort check excluded before analysis, with the reason. */
   excluded?: Array<{ subject: string; reason: string }>;
   /** Subjects analysed in this run (computed + reused). */

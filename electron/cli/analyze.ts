@@ -232,6 +232,14 @@ export function printSummary(io: CliIO, prefix: string, s: RunSummary): void {
   ];
   for (const f of s.failures) lines.push(`  failed   ${f.subject || '(run)'}: ${f.reason}`);
   for (const f of excluded) lines.push(`  excluded ${f.subject}: ${f.reason}`);
+  const findings = s.findings ?? [];
+  const SHOWN = 8;
+  for (const f of findings.slice(0, SHOWN))
+    lines.push(
+      `  ${f.severity === 'error' ? 'error  ' : 'warning'}  ${f.file ?? f.subject ?? ''} [${f.code}] ${f.message}`,
+    );
+  if (findings.length > SHOWN)
+    lines.push(`  …        ${findings.length - SHOWN} more findings (loopwise validate lists them all)`);
   if (s.cacheDir) lines.push(`  cache    ${s.cacheDir} (${formatBytes(s.cacheBytes ?? 0)}; safe to delete)`);
   if (s.outDir && s.files && s.files.length > 0) lines.push(`  tables   ${s.outDir}: ${s.files.join(', ')}`);
   if (s.elapsedMs !== undefined) lines.push(`  time     ${formatDuration(s.elapsedMs)}`);

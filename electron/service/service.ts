@@ -305,6 +305,7 @@ export class LoopwiseService implements LoopwiseApi {
         reused,
         failures,
         excluded,
+        findings: report.findings.filter((f) => f.severity === 'warning' || f.subject === null),
         analysed: computed + reused,
         outDir: req.outDir,
         peakRssBytes: peakRss,

@@ -157,6 +157,18 @@ describe('exit codes of a finished run', () => {
   });
 });
 
+describe('the summary names what the cohort check flagged', () => {
+  it('an unreadable node table is a warning the run prints, naming the file; the run goes on (exit 0)', () => {
+    const dir = join(root, 'garbage-nodes');
+    writeCohort(dir, { subjects: 4, n: 8, seed: 3 });
+    writeFileSync(join(dir, 'nodes.tsv'), Buffer.from([0x6c, 0x61, 0x62, 0x0a, 0x00, 0x01, 0xff, 0x0a]));
+    const r = loopwise(['analyze', dir, '--out', join(root, 'garbage-nodes-out'), '--workers', '1']);
+    expect(r.code).toBe(0);
+    expect(r.err).toMatch(/warning\s+nodes\.tsv \[nodes-unreadable\]/);
+    expect(existsSync(join(root, 'garbage-nodes-out', 'nodes.tsv'))).toBe(true);
+  });
+});
+
 describe('the grid', () => {
   const cols = [
     'betti0_area',
