@@ -601,6 +601,13 @@ export function validateMatrixPick(v: { variable?: unknown; stackIndex?: unknown
   return c.list;
 }
 
+// ---------- Scan keys ----------
+
+/** The unique row key of a scan: the participant alone without sessions, else `${participant}_ses-${session}`. */
+export function scanId(participant: string, session: string | null): string {
+  return session === null ? participant : `${participant}_ses-${session}`;
+}
+
 // ---------- Defaults ----------
 
 export function defaultAnalysisSettings(): AnalysisSettings {

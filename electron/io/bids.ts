@@ -61,10 +61,7 @@ export function tokenRe(id: string): RegExp {
   return new RegExp(`(?:^|${NOT_LABEL})${escaped}(?!${LABEL})`, 'u');
 }
 
-/** The unique row key of a scan: the participant alone without sessions, else `${participant}_ses-${session}`. */
-export function scanId(participant: string, session: string | null): string {
-  return session === null ? participant : `${participant}_ses-${session}`;
-}
+export { scanId } from '../contract.ts';
 
 /** A sessions-table cell (`ses-pre` or `pre`) as a session label. */
 export function sessionLabel(cell: string): string {

@@ -15,6 +15,7 @@ import type {
   StatsSettings,
   SubjectResult,
 } from '../../electron/api.ts';
+import { defaultStatsSettings } from '../../electron/contract.ts';
 import { computePersistence } from '../../electron/engine/persistence.ts';
 import { createRng } from '../../electron/engine/random.ts';
 import { toDistances } from '../../electron/engine/transform.ts';
@@ -227,17 +228,7 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
       landscapeLevels: 3,
       dropRegions: [],
     },
-    stats: {
-      groupColumn: 'group',
-      effect: null,
-      model: null,
-      test: null,
-      reference: null,
-      blocks: null,
-      covariates: [],
-      permutations: 1000,
-      seed: 1,
-    },
+    stats: { ...defaultStatsSettings(), groupColumn: 'group', permutations: 1000 },
   };
 
   const emit = (e: ProgressEvent) => {

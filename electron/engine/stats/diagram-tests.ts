@@ -52,10 +52,9 @@ export interface DistanceTestOptions {
   seed: number;
 }
 
-function checkInputs(distances: SquareMatrix, group: Int32Array): number {
+/** Throws unless the distances are finite, non-negative and symmetric. */
+function checkDistances(distances: SquareMatrix): void {
   const { n, values } = distances;
-  if (group.length !== n)
-    throw new Error(`distance matrix has ${n} subjects but ${group.length} group labels were given`);
   for (let i = 0; i < n; i++) {
     for (let j = 0; j < i; j++) {
       const d = values[i * n + j];
@@ -65,6 +64,13 @@ function checkInputs(distances: SquareMatrix, group: Int32Array): number {
       }
     }
   }
+}
+
+function checkInputs(distances: SquareMatrix, group: Int32Array): number {
+  const { n } = distances;
+  if (group.length !== n)
+    throw new Error(`distance matrix has ${n} subjects but ${group.length} group labels were given`);
+  checkDistances(distances);
   const levels = Math.max(...group) + 1;
   for (let g = 0; g < levels; g++) {
     const size = group.filter((x) => x === g).length;
@@ -173,15 +179,7 @@ export function distanceRegression(
   const { n, values } = distances;
   if (columns[0].length !== n)
     throw new Error(`distance matrix has ${n} subjects but the design has ${columns[0].length} rows`);
-  for (let i = 0; i < n; i++) {
-    for (let j = 0; j < i; j++) {
-      const d = values[i * n + j];
-      if (!Number.isFinite(d) || d < 0) throw new Error(`distance between subjects ${i} and ${j} is ${d}`);
-      if (Math.abs(d - values[j * n + i]) > 1e-9 * Math.max(1, d)) {
-        throw new Error(`distance matrix is not symmetric at subjects ${i}, ${j}`);
-      }
-    }
-  }
+  checkDistances(distances);
   const requested = options.permutations ?? 5000;
   const plan = permutationPlan(columns, contrast, options);
   const { s, df2, basis, qz } = plan;

@@ -1,6 +1,6 @@
 /** Reading the result tables by column name, and writing them back out as text. */
 import type { Table } from '../../../electron/api.ts';
-import { MISSING_SPELLINGS, MISSING_VALUE } from '../../../electron/contract.ts';
+import { MISSING_SPELLINGS, MISSING_VALUE, scanId } from '../../../electron/contract.ts';
 
 export type Cell = string | number | null;
 
@@ -28,7 +28,7 @@ export function column(table: Table, name: string): Cell[] {
 export function scanKey(r: Record<string, Cell>, idColumn: string): string {
   const id = String(r[idColumn]);
   const session = r.session;
-  return session === null || session === undefined || session === '' ? id : `${id}_ses-${String(session)}`;
+  return scanId(id, session === null || session === undefined || session === '' ? null : String(session));
 }
 
 export function records(table: Table): Array<Record<string, Cell>> {
