@@ -239,7 +239,12 @@ export async function startWebServer(api: LoopwiseApi, options: WebServerOptions
               ? 507
               : 403
             : 500;
-      return send(res, status, { error: e instanceof Error ? e.message : String(e) });
+      // A refusal's code (the output folder's rule) lets the app offer its way out.
+      const reason = (e as { code?: unknown }).code;
+      return send(res, status, {
+        error: e instanceof Error ? e.message : String(e),
+        ...(kind === 'OutDirError' && typeof reason === 'string' ? { code: reason } : {}),
+      });
     }
   }
 

@@ -19,6 +19,7 @@
 import { join, resolve } from 'node:path';
 import { setInterval, clearInterval } from 'node:timers';
 import type {
+  RunInfo,
   AnalysisSettings,
   CohortReport,
   CohortResults,
@@ -44,7 +45,7 @@ import { openCohortSource } from './cohort-source.ts';
 import type { CohortSource, SourceOptions } from './cohort-source.ts';
 import type { RunHooks, StageOutput } from './hooks.ts';
 import { OutDirError } from './outdir.ts';
-import type { OutputFolder } from './outdir.ts';
+import type { OutDirErrorCode, OutputFolder } from './outdir.ts';
 import { openRunFolder } from './run-folder.ts';
 import { SHARD_DIR, checkShard, readShards, shardLockName, shareOf, writeShardManifest } from './shards.ts';
 import type { ShardManifest } from './shards.ts';
@@ -109,14 +110,21 @@ interface RunState {
   stageFailures: Array<{ subject: string; reason: string }>;
   summary: RunSummary | null;
   done: Promise<RunSummary>;
+  startedAt: string;
+  /** The run's latest progress event, for listRuns. */
+  lastProgress: ProgressEvent | null;
+  /** An export in flight: its latest progress event (null when none runs). */
+  exporting: ProgressEvent | null;
 }
 
 /** A run's state as it starts: running, nothing computed yet. */
 function newRunState(
-  fields: Pick<RunState, 'runId' | 'request' | 'source' | 'report' | 'cache' | 'run' | 'folder'>,
+  fields: Pick<RunState, 'runId' | 'request' | 'source' | 'report' | 'cache' | 'run' | 'folder' | 'startedAt'>,
 ): RunState {
   return {
     ...fields,
+    lastProgress: null,
+    exporting: null,
     status: 'running',
     cancelRequested: false,
     pool: null,
@@ -163,6 +171,11 @@ export class LoopwiseService implements LoopwiseApi {
   }
 
   private emit(e: ProgressEvent): void {
+    const run = this.runs.get(e.runId);
+    if (run) {
+      if (e.phase === 'export') run.exporting = e;
+      else run.lastProgress = e;
+    }
     for (const l of this.listeners) {
       try {
         l(e);
@@ -239,6 +252,7 @@ export class LoopwiseService implements LoopwiseApi {
       cache,
       run: null,
       folder,
+      startedAt: this.now().toISOString(),
     });
     this.runs.set(runId, state);
     state.done = this.execute(state, format);
@@ -410,7 +424,12 @@ export class LoopwiseService implements LoopwiseApi {
    * Tables, then hooks (2)–(4), then the output folder is marked complete (or failed, when a stage
    * could not run). Returns the files written. Throws when a file cannot be written.
    */
-  private async finish(state: RunState, folder: OutputFolder | null, format: TableFormat): Promise<string[]> {
+  private async finish(
+    state: RunState,
+    folder: OutputFolder | null,
+    format: TableFormat,
+    emit: (e: ProgressEvent) => void = (e) => this.emit(e),
+  ): Promise<string[]> {
     const run = state.run as RunRecords;
     const createdAt = this.now().toISOString();
     state.stageFailures = [];
@@ -432,7 +451,7 @@ export class LoopwiseService implements LoopwiseApi {
       source: state.source,
       folder,
       format,
-      emit: (e) => this.emit(e),
+      emit,
       cancelled: () => state.cancelRequested,
       workers: this.pool?.size ?? this.options.workers ?? defaultPoolSize(),
     });
@@ -508,6 +527,7 @@ export class LoopwiseService implements LoopwiseApi {
       report: first.report,
       cache,
       folder,
+      startedAt: this.now().toISOString(),
       run: {
         cohortRoot: first.report.root,
         settings: first.settings,
@@ -561,6 +581,22 @@ export class LoopwiseService implements LoopwiseApi {
     return summary;
   }
 
+  async listRuns(): Promise<RunInfo[]> {
+    return [...this.runs.values()].map((s) => ({
+      runId: s.runId,
+      status: s.status,
+      startedAt: s.startedAt,
+      request: {
+        cohort: s.request.cohort,
+        settings: s.request.settings,
+        stats: s.request.stats,
+        outDir: s.request.outDir,
+      },
+      progress: s.lastProgress,
+      exporting: s.exporting,
+    }));
+  }
+
   async runSummary(runId: string): Promise<RunSummary | null> {
     return this.runs.get(runId)?.summary ?? null;
   }
@@ -584,20 +620,62 @@ export class LoopwiseService implements LoopwiseApi {
           ? `run ${runId} is still running: export once it is done`
           : `run ${runId} ${s.status === 'cancelled' ? 'was cancelled' : `failed (${s.stageFailures.map((f) => `${f.subject} ${f.reason}`).join('; ') || 'see its summary'})`}: nothing to export; fix the settings and run again`,
       );
+    if (s.exporting)
+      throw new RunStateError(`run ${runId} is being exported already: wait until that export ends`);
     const dir = resolve(outDir);
     const format = s.request.tableFormat ?? 'tsv';
-    const folder = await openRunFolder(dir, s.request, format, overwrite);
+    // The export's progress is its own phase: a client never takes it for the run's stages.
+    const started = performance.now();
+    const exportEvent = (stage: string, done: number, total: number, etaMs: number | null): ProgressEvent => ({
+      runId,
+      phase: 'export',
+      done,
+      total,
+      reused: 0,
+      currentSubject: null,
+      elapsedMs: performance.now() - started,
+      etaMs,
+      failures: [],
+      message: stage,
+    });
+    const begin = exportEvent('tables', 0, 0, null);
+    s.exporting = begin;
     try {
-      const files = await this.finish(s, folder, format);
-      if (s.stageFailures.length > 0)
-        throw new Error(
-          `the export to ${dir} is incomplete: ${s.stageFailures.map((f) => `${f.subject} ${f.reason}`).join('; ')}`,
+      const folder = await openRunFolder(dir, s.request, format, overwrite).catch((e: unknown) => {
+        throw exportRefusal(e, dir);
+      });
+      this.emit(begin);
+      try {
+        const files = await this.finish(s, folder, format, (e) =>
+          this.emit(exportEvent(e.message ? `${e.phase}: ${e.message}` : e.phase, e.done, e.total, e.etaMs)),
         );
-      return { files };
+        if (s.stageFailures.length > 0)
+          throw new Error(
+            `the export to ${dir} is incomplete: ${s.stageFailures.map((f) => `${f.subject} ${f.reason}`).join('; ')}`,
+          );
+        return { files };
+      } finally {
+        await folder.release();
+      }
     } finally {
-      await folder.release();
+      s.exporting = null;
     }
   }
+}
+
+/**
+ * The output folder's refusal in the app's words: exportRun is called from the app only, where
+ * the choice is a checkbox or a button, not --force. The reason's code stays on the error.
+ */
+function exportRefusal(e: unknown, dir: string): unknown {
+  if (!(e instanceof OutDirError)) return e;
+  const words: Partial<Record<OutDirErrorCode, string>> = {
+    'finished-run': `${dir} already holds the tables of an earlier Loopwise run. Replace them (files Loopwise did not write stay), or choose another folder.`,
+    'foreign-files': `${dir} already holds files Loopwise did not write. Write beside them (they are left alone), or choose an empty folder.`,
+    'unfinished-run': `${dir} holds an unfinished Loopwise run with other settings. Replace it, or choose another folder.`,
+  };
+  const text = words[e.code as OutDirErrorCode];
+  return text ? new OutDirError(text, e.code) : e;
 }
 
 /** A call the run's state does not allow (e.g. exporting a run that failed): a conflict, not a fault. */

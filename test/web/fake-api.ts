@@ -10,6 +10,7 @@ import type {
   CurveBand,
   LoopwiseApi,
   ProgressEvent,
+  RunInfo,
   RunSummary,
   StartRunRequest,
   StatsSettings,
@@ -64,7 +65,10 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
   const listeners = new Set<(e: ProgressEvent) => void>();
   const ids = Array.from({ length: 10 }, (_, i) => `sub-${String(i + 1).padStart(2, '0')}`);
   const groupOf = (i: number) => (i % 2 === 0 ? 'control' : 'patient');
-  const runs = new Map<string, { req: StartRunRequest; cancelled: boolean }>();
+  const runs = new Map<
+    string,
+    { req: StartRunRequest; cancelled: boolean; startedAt: string; last: ProgressEvent | null }
+  >();
 
   const report = (): CohortReport => ({
     root,
@@ -232,6 +236,8 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
   };
 
   const emit = (e: ProgressEvent) => {
+    const run = runs.get(e.runId);
+    if (run && e.phase !== 'export') run.last = e;
     for (const l of listeners) l(e);
   };
 
@@ -249,7 +255,7 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
     async startRun(req) {
       calls.push({ method: 'startRun', args: [req] });
       const runId = `run-${runs.size + 1}`;
-      runs.set(runId, { req, cancelled: false });
+      runs.set(runId, { req, cancelled: false, startedAt: new Date(0).toISOString(), last: null });
       const total = 9;
       let done = 0;
       const tick = () => {
@@ -296,6 +302,21 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
       listeners.add(listener);
       return () => listeners.delete(listener);
     },
+    async listRuns(): Promise<RunInfo[]> {
+      calls.push({ method: 'listRuns', args: [] });
+      return [...runs].map(([runId, r]) => ({
+        runId,
+        status: r.cancelled
+          ? 'cancelled'
+          : r.last?.phase === 'done' || r.last?.phase === 'failed'
+            ? r.last.phase
+            : 'running',
+        startedAt: r.startedAt,
+        request: { cohort: r.req.cohort, settings: r.req.settings, stats: r.req.stats, outDir: r.req.outDir },
+        progress: r.last,
+        exporting: null,
+      }));
+    },
     async runSummary(runId): Promise<RunSummary | null> {
       calls.push({ method: 'runSummary', args: [runId] });
       if (!runs.has(runId)) return null;
@@ -325,7 +346,11 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
         throw e;
       }
       if (outDir.endsWith('taken') && !overwrite) {
-        const e = new Error(`${outDir} already holds results; choose another folder or allow replacing`);
+        // As the service's OutDirError, with the rule's code the app offers its way out by.
+        const e = Object.assign(
+          new Error(`${outDir} already holds results; choose another folder or allow replacing`),
+          { code: 'finished-run' },
+        );
         e.name = 'OutDirError';
         throw e;
       }
