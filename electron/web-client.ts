@@ -32,6 +32,8 @@ export interface DoorInfo {
   version: string;
   /** The bundled demo cohort, when it is present. */
   sampleCohort: string | null;
+  /** The study named at start (`npm start -- --cohort DIR`): the app opens it at once. */
+  startCohort?: string | null;
   /** Where exports go unless the user picks another folder. */
   defaultOutDir: string | null;
   /** Browser mode: the only folders the server will touch. Electron: the folders picked so far. */
@@ -289,9 +291,12 @@ export function createHttpClient(opts: HttpClientOptions): LoopwiseDoor {
     } catch (e) {
       // No answer at all (the server stopped, the network dropped): not the call's fault.
       setConnected(false);
-      throw Object.assign(new Error(`${method}: the Loopwise service does not answer (${(e as Error).message})`), {
-        disconnected: true,
-      });
+      throw Object.assign(
+        new Error(`${method}: the Loopwise service does not answer (${(e as Error).message})`),
+        {
+          disconnected: true,
+        },
+      );
     }
     setConnected(true);
     const text = await res.text();

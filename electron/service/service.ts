@@ -119,7 +119,10 @@ interface RunState {
 
 /** A run's state as it starts: running, nothing computed yet. */
 function newRunState(
-  fields: Pick<RunState, 'runId' | 'request' | 'source' | 'report' | 'cache' | 'run' | 'folder' | 'startedAt'>,
+  fields: Pick<
+    RunState,
+    'runId' | 'request' | 'source' | 'report' | 'cache' | 'run' | 'folder' | 'startedAt'
+  >,
 ): RunState {
   return {
     ...fields,
@@ -626,7 +629,12 @@ export class LoopwiseService implements LoopwiseApi {
     const format = s.request.tableFormat ?? 'tsv';
     // The export's progress is its own phase: a client never takes it for the run's stages.
     const started = performance.now();
-    const exportEvent = (stage: string, done: number, total: number, etaMs: number | null): ProgressEvent => ({
+    const exportEvent = (
+      stage: string,
+      done: number,
+      total: number,
+      etaMs: number | null,
+    ): ProgressEvent => ({
       runId,
       phase: 'export',
       done,

@@ -119,7 +119,10 @@ describe('Electron IPC', () => {
     const { runId } = (await call('startRun', [
       { cohort: { dir: sample }, settings, stats: { ...stats, groupColumn: null }, outDir: null },
     ])) as { runId: string };
-    const runs = (await call('listRuns', [])) as Array<{ runId: string; request: { cohort: { dir: string } } }>;
+    const runs = (await call('listRuns', [])) as Array<{
+      runId: string;
+      request: { cohort: { dir: string } };
+    }>;
     expect(runs.find((r) => r.runId === runId)?.request.cohort.dir).toBe(sample);
     await expect(call('listRuns', [1])).rejects.toThrow(/takes 0 arguments/);
   });

@@ -142,7 +142,11 @@ describe('browser-mode server', () => {
     ).json()) as { runId: string };
     const res = await post('listRuns', []);
     expect(res.status).toBe(200);
-    const runs = (await res.json()) as Array<{ runId: string; status: string; request: { cohort: { dir: string } } }>;
+    const runs = (await res.json()) as Array<{
+      runId: string;
+      status: string;
+      request: { cohort: { dir: string } };
+    }>;
     const mine = runs.find((r) => r.runId === started.runId);
     expect(mine?.request.cohort.dir).toBe(cohort);
     expect(['running', 'done']).toContain(mine?.status);

@@ -25,11 +25,18 @@ export function loadPlotly(): Promise<PlotlyLike> {
   return loading;
 }
 
+/**
+ * Every chart's configuration. Nothing leaves the machine: Plotly's "Share chart…" button
+ * (`sendChartToCloud` in plotly.js 3+; `sendDataToCloud` before) uploads the figure to an external
+ * service, so it is switched off (`showSendToCloud`), removed under both names, and given no
+ * server to send to. Our own export buttons add provenance; Plotly's image button would not.
+ */
 export const PLOT_CONFIG = {
   displaylogo: false,
   responsive: true,
-  // Our own export buttons add provenance; Plotly's would not.
-  modeBarButtonsToRemove: ['toImage', 'sendDataToCloud', 'select2d', 'lasso2d'],
+  showSendToCloud: false,
+  plotlyServerURL: '',
+  modeBarButtonsToRemove: ['toImage', 'sendChartToCloud', 'sendDataToCloud', 'select2d', 'lasso2d'],
 };
 
 export async function draw(el: HTMLElement, fig: Figure): Promise<PlotlyLike> {
