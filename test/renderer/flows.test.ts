@@ -201,6 +201,26 @@ describe('reload, earlier runs and disconnection', () => {
     await waitFor(() => expect(api.calls.filter((c) => c.method === 'listRuns').length).toBe(before + 1));
   });
 
+  it('opens the study named at start (npm start -- --cohort DIR) at once, unless a reload restores another', async () => {
+    const api = createFakeApi({ root: '/data/study' });
+    const withStart = (): LoopwiseDoor => ({
+      ...door(api),
+      info: async () => ({
+        mode: 'web',
+        version: 'test',
+        sampleCohort: '/data/sample',
+        startCohort: '/data/study',
+        defaultOutDir: '/data/out',
+        roots: ['/data'],
+      }),
+    });
+    const session = new Session(withStart(), memoryStorage());
+    await session.init();
+    expect(api.calls.find((c) => c.method === 'openCohort')?.args).toEqual([{ dir: '/data/study' }]);
+    expect(session.report?.root).toBe('/data/study');
+    expect(session.cohortDir).toBe('/data/study');
+  });
+
   it('ignores export events of another run and never lets them move the run panel', () => {
     const api = createFakeApi({ root: '/data/sample' });
     const session = new Session(door(api));
