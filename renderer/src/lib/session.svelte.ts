@@ -336,8 +336,13 @@ export class Session {
       return;
     }
     const listed = this.runs.findIndex((r) => r.runId === e.runId);
-    if (listed >= 0 && (e.phase === 'done' || e.phase === 'cancelled' || e.phase === 'failed')) {
-      this.runs[listed] = { ...this.runs[listed], status: e.phase, progress: e };
+    if (listed >= 0) {
+      const ended = e.phase === 'done' || e.phase === 'cancelled' || e.phase === 'failed';
+      this.runs[listed] = {
+        ...this.runs[listed],
+        status: ended ? (e.phase as RunInfo['status']) : 'running',
+        progress: e,
+      };
     }
     if (this.runId !== null && e.runId !== this.runId) return;
     this.progress = e;
