@@ -240,3 +240,47 @@ describe('reload, earlier runs and disconnection', () => {
     expect(session.exportProgress).toBeNull();
   });
 });
+
+describe('tables on screen', () => {
+  it('sort by a column (numbers by value, missing last), filter by text, and name columns from the glossary', async () => {
+    const { default: DataTable } = await import('../../renderer/src/components/DataTable.svelte');
+    const rows = [
+      ['sub-10', 0.5, 0.04],
+      ['sub-2', null, 0.2],
+      ['sub-1', 12, 0.001],
+      ['sub-3', -3, null],
+      ['sub-20', 2, 0.5],
+      ['sub-4', 0.25, 0.03],
+    ];
+    render(DataTable, { columns: ['participant_id', 'h1_count', 'p_fwer'], rows });
+    const header = screen.getByRole('columnheader', { name: /p \(FWER-corrected\)/ });
+    // The file's column name stays reachable in the tooltip.
+    expect(header.getAttribute('title')).toMatch(/\(column p_fwer\)$/);
+    const firstColumn = () =>
+      screen
+        .getAllByRole('row')
+        .slice(1)
+        .map((r) => within(r).getAllByRole('cell')[0].textContent);
+    await fireEvent.click(
+      within(screen.getByRole('columnheader', { name: /H1 intervals/ })).getByRole('button'),
+    );
+    expect(firstColumn()).toEqual(['sub-3', 'sub-4', 'sub-10', 'sub-20', 'sub-1', 'sub-2']);
+    expect(screen.getByRole('columnheader', { name: /H1 intervals/ }).getAttribute('aria-sort')).toBe(
+      'ascending',
+    );
+    await fireEvent.click(
+      within(screen.getByRole('columnheader', { name: /H1 intervals/ })).getByRole('button'),
+    );
+    expect(firstColumn()).toEqual(['sub-1', 'sub-20', 'sub-10', 'sub-4', 'sub-3', 'sub-2']);
+    // Text sorts in natural order: sub-2 before sub-10.
+    await fireEvent.click(
+      within(screen.getByRole('columnheader', { name: /participant_id/ })).getByRole('button'),
+    );
+    expect(firstColumn()).toEqual(['sub-1', 'sub-2', 'sub-3', 'sub-4', 'sub-10', 'sub-20']);
+    await fireEvent.input(screen.getByRole('searchbox', { name: 'Filter rows' }), {
+      target: { value: 'sub-2' },
+    });
+    expect(firstColumn()).toEqual(['sub-2', 'sub-20']);
+    expect(screen.getByText('2 of 6 rows')).toBeTruthy();
+  });
+});
