@@ -224,7 +224,8 @@ describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
       await plot('persistence-diagram').locator('.scatterlayer .trace').last().locator('.point').count(),
     ).toBe(1);
     // The cycle's edges are drawn on both projections.
-    const edges = plot('cycle-axial').locator('.scatterlayer .trace').nth(1).locator('path.js-line');
+    // Trace 0 is the outline of the node cloud, 1 the nodes, 2 the cycle's edges.
+    const edges = plot('cycle-axial').locator('.scatterlayer .trace').nth(2).locator('path.js-line');
     expect(await edges.count()).toBeGreaterThan(0);
     expect(await edges.first().getAttribute('d')).toMatch(/^M.+L/);
     expect(id).toMatch(/^1:\d+$/);

@@ -39,8 +39,22 @@ export const PLOT_CONFIG = {
   modeBarButtonsToRemove: ['toImage', 'sendChartToCloud', 'sendDataToCloud', 'select2d', 'lasso2d'],
 };
 
+/**
+ * The layout with every axis's hover values to 4 significant digits (d3-format '.4~g', trailing
+ * zeros dropped), unless the figure sets its own: hover texts never show 0.30000000000000004.
+ */
+export function readableLayout(layout: Record<string, unknown>): Record<string, unknown> {
+  const out: Record<string, unknown> = { ...layout };
+  const axes = new Set(['xaxis', 'yaxis', ...Object.keys(layout).filter((k) => /^[xy]axis\d*$/.test(k))]);
+  for (const k of axes) {
+    const axis = (layout[k] ?? {}) as Record<string, unknown>;
+    out[k] = { hoverformat: '.4~g', ...axis };
+  }
+  return out;
+}
+
 export async function draw(el: HTMLElement, fig: Figure): Promise<PlotlyLike> {
   const Plotly = await loadPlotly();
-  await Plotly.react(el, fig.data, { autosize: true, ...fig.layout }, PLOT_CONFIG);
+  await Plotly.react(el, fig.data, readableLayout({ autosize: true, ...fig.layout }), PLOT_CONFIG);
   return Plotly;
 }
