@@ -284,3 +284,33 @@ describe('tables on screen', () => {
     expect(screen.getByText('2 of 6 rows')).toBeTruthy();
   });
 });
+
+describe('the Study view builds what the CLI’s reader and design options build', () => {
+  it('sends the node table and column kinds (--nodes, --numeric/--categorical) and names each option as the contract does', async () => {
+    const { OPTIONS } = await import('../../electron/contract.ts');
+    const api = createFakeApi({ root: '/data/sample' });
+    const session = new Session(door(api));
+    render(App, { session });
+    await session.init();
+    await fireEvent.click(screen.getByRole('button', { name: 'Open the sample cohort' }));
+    await waitFor(() => expect(session.report).not.toBeNull());
+    await fireEvent.change(screen.getByRole('textbox', { name: 'Node table' }), {
+      target: { value: 'atlas/nodes.tsv' },
+    });
+    await fireEvent.change(screen.getByRole('combobox', { name: /^age/ }), {
+      target: { value: 'categorical' },
+    });
+    expect(session.cohortOptions).toEqual({ nodes: 'atlas/nodes.tsv', columnKinds: { age: 'categorical' } });
+    // The field's tooltip is the contract's help for the option, with its CLI flag.
+    const nodes = OPTIONS.find((o) => o.field === 'cohort.nodes')!;
+    const tip = screen.getByRole('textbox', { name: 'Node table' }).closest('label')!.getAttribute('title');
+    expect(tip).toContain(nodes.help);
+    expect(tip).toContain('--nodes');
+    await fireEvent.change(screen.getByRole('combobox', { name: /^age/ }), { target: { value: '' } });
+    expect(session.cohortOptions).toEqual({ nodes: 'atlas/nodes.tsv' });
+    await session.openCohort('/data/sample');
+    expect(api.calls.filter((c) => c.method === 'openCohort').at(-1)?.args).toEqual([
+      { dir: '/data/sample', nodes: 'atlas/nodes.tsv' },
+    ]);
+  });
+});
