@@ -94,9 +94,17 @@ describe('the matrix heatmap', () => {
 
   it('draws a line between blocks and names each block on the axes (too many regions for each label)', () => {
     const fig = heatmapFigure(subject, nodes);
-    const shapes = fig.layout.shapes as Array<{ x0?: number; y0?: number; xref: string }>;
+    const shapes = fig.layout.shapes as Array<{ x0: number; x1: number; y0: number; y1: number }>;
     expect(shapes).toHaveLength(4);
-    expect(shapes.filter((s) => s.xref === 'x').map((s) => s.x0)).toEqual([19.5, 39.5]);
+    // Vertical lines between the blocks, and horizontal ones, each from edge to edge of the matrix.
+    expect(shapes.filter((s) => s.x0 === s.x1).map((s) => [s.x0, s.y0, s.y1])).toEqual([
+      [19.5, -0.5, 59.5],
+      [39.5, -0.5, 59.5],
+    ]);
+    expect(shapes.filter((s) => s.y0 === s.y1).map((s) => [s.y0, s.x0, s.x1])).toEqual([
+      [19.5, -0.5, 59.5],
+      [39.5, -0.5, 59.5],
+    ]);
     const xaxis = fig.layout.xaxis as { tickvals: string[]; ticktext: string[]; showticklabels: boolean };
     expect(xaxis.showticklabels).toBe(true);
     expect(xaxis.ticktext).toEqual(networks);

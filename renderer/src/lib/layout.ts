@@ -185,3 +185,12 @@ export function spreadLabels(
   }
   return { text, position };
 }
+
+/** The figure with the node cloud's outline drawn first (under everything), where the layout has one. */
+export function withOutline<F extends { data: Array<Record<string, unknown>> }>(
+  fig: F,
+  layout: NodeLayout,
+): F {
+  const outline = outlineTrace(layout);
+  return outline ? { ...fig, data: [outline, ...fig.data] } : fig;
+}

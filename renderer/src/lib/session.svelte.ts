@@ -385,7 +385,7 @@ export class Session {
       // Electron's IPC carries only the message: the service's words for these refusals say it.
       const replaceable =
         (typeof code === 'string' && REPLACEABLE.has(code)) ||
-        (code === undefined && !replace && /already holds/.test(message));
+        (code === undefined && !replace && /already holds|holds an unfinished/.test(message));
       this.exportProblem = { dir, message, replace: replaceable && !replace };
     } finally {
       this.exporting = false;

@@ -203,26 +203,29 @@ export function heatmapFigure(s: SubjectResult, nodes: NodeInfo[]): Figure {
   // as the axis label of its block where the regions are too many to label one by one.
   const blocks = named ? networkBlocks(nodes) : [];
   const few = s.n <= 40;
+  const edge = [-0.5, s.n - 0.5];
+  const line = { color: '#222', width: 1 };
+  // In the regions' own coordinates, so the lines stop at the matrix's edges.
   const separators = blocks.slice(1).flatMap((b) => [
     {
       type: 'line',
       xref: 'x',
-      yref: 'paper',
+      yref: 'y',
       x0: b.start - 0.5,
       x1: b.start - 0.5,
-      y0: 0,
-      y1: 1,
-      line: { color: '#222', width: 1 },
+      y0: edge[0],
+      y1: edge[1],
+      line,
     },
     {
       type: 'line',
-      xref: 'paper',
+      xref: 'x',
       yref: 'y',
       y0: b.start - 0.5,
       y1: b.start - 0.5,
-      x0: 0,
-      x1: 1,
-      line: { color: '#222', width: 1 },
+      x0: edge[0],
+      x1: edge[1],
+      line,
     },
   ]);
   const blockTicks =
