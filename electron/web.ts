@@ -237,18 +237,19 @@ export async function startWebServer(api: LoopwiseApi, options: WebServerOptions
       const kind = e instanceof Error ? e.name : '';
       const code = (e as { code?: string }).code;
       const status =
-        kind === 'OutDirError' || kind === 'RunStateError'
-          ? 409
-          : kind === 'WriteError'
-            ? code === 'ENOSPC' || code === 'EDQUOT'
-              ? 507
-              : 403
-            : 500;
+        kind === 'ComparisonError'
+          ? 400
+          : kind === 'OutDirError' || kind === 'RunStateError'
+            ? 409
+            : kind === 'WriteError'
+              ? code === 'ENOSPC' || code === 'EDQUOT'
+                ? 507
+                : 403
+              : 500;
       // A refusal's code (the output folder's rule) lets the app offer its way out.
-      const reason = (e as { code?: unknown }).code;
       return send(res, status, {
         error: e instanceof Error ? e.message : String(e),
-        ...(kind === 'OutDirError' && typeof reason === 'string' ? { code: reason } : {}),
+        ...(kind === 'OutDirError' && typeof code === 'string' ? { code } : {}),
       });
     }
   }

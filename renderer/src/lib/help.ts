@@ -12,6 +12,8 @@ export const VIEW_HELP: Record<ViewName, string> = {
     'Node measures say how much each region takes part in the loops (H1) or how early it joins the network (H0). Regions are ranked by the effect size of the tested design; stars mark regions significant after family-wise correction. Positions come from the node table, or a circle when there is none.',
   subject:
     'One scan in detail: the barcode and persistence diagram (each bar or point is one component or loop, from its birth to its death along the filtration), the matrix as read, and the cycle of the selected loop drawn on the regions. Select an interval in the table, the barcode or the diagram.',
+  compare:
+    'Two filtrations side by side: two scans, a scan against its group’s mean matrix, or two groups’ means. Diagrams and barcodes share their axes; the distance between the diagrams is the one the whole-diagram tests use; cycles are linked across the panels by the regions they pass through. A scan’s percentile rank is its position in this cohort, not a clinical norm.',
   export:
     'Write every table of the run (TSV, readable by R and pandas, NA for missing) with provenance.json: the settings, versions and a hash of every input. An existing folder is never overwritten unless you choose to replace Loopwise’s own files there. Figures are saved as SVG or PNG with the provenance inside.',
 };

@@ -15,9 +15,9 @@ import type { DoorInfo, LoopwiseDoor } from '../../../electron/web-client.ts';
 import { mergeFailures } from './progress.ts';
 import { proposedDesign } from './study.ts';
 
-export type ViewName = 'study' | 'analysis' | 'groups' | 'regions' | 'subject' | 'export';
+export type ViewName = 'study' | 'analysis' | 'groups' | 'regions' | 'subject' | 'compare' | 'export';
 
-const VIEWS: readonly ViewName[] = ['study', 'analysis', 'groups', 'regions', 'subject', 'export'];
+const VIEWS: readonly ViewName[] = ['study', 'analysis', 'groups', 'regions', 'subject', 'compare', 'export'];
 
 /** The key under which a page keeps its choices for a reload (sessionStorage: this tab only). */
 export const STORAGE_KEY = 'loopwise:session:1';
@@ -72,6 +72,10 @@ export class Session {
   seen = $state<Array<{ subject: string; cached: boolean }>>([]);
   summary = $state<RunSummary | null>(null);
   results = $state<CohortResults | null>(null);
+
+  /** The Compare view's two sides, as 'scan:ID' or 'group:LEVEL' (kept across views). */
+  compareA = $state('');
+  compareB = $state('');
 
   subjectId = $state<string | null>(null);
   subject = $state<SubjectResult | null>(null);
@@ -250,6 +254,8 @@ export class Session {
       this.results = null;
       this.subject = null;
       this.subjectId = null;
+      this.compareA = '';
+      this.compareB = '';
       this.exported = null;
       this.exportProblem = null;
     });
@@ -271,6 +277,8 @@ export class Session {
       this.progress = null;
       this.subject = null;
       this.subjectId = null;
+      this.compareA = '';
+      this.compareB = '';
       // The design in use where it fits this cohort, else one that does (sessions: group × session, blocks).
       if (this.stats) this.stats = proposedDesign(report, $state.snapshot(this.stats) as StatsSettings);
     });
@@ -312,6 +320,8 @@ export class Session {
     this.runId = started.runId;
     this.subject = null;
     this.subjectId = null;
+    this.compareA = '';
+    this.compareB = '';
     this.exported = null;
     this.exportProblem = null;
     this.notice = previous
