@@ -324,6 +324,9 @@ describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
     await drawn('subject-map-mds');
     // Two clicks on the subject map fill A, then B, and compare them.
     const points = plot('subject-map-mds').locator('.scatterlayer .trace .point');
+    // The mouse clicks at viewport positions: the map must be in view (the views' help text and
+    // notices push it down).
+    await plot('subject-map-mds').scrollIntoViewIfNeeded();
     for (const k of [0, 5]) {
       const box = await points.nth(k).boundingBox();
       expect(box).not.toBeNull();
