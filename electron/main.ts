@@ -89,7 +89,16 @@ export function startElectronApp(api: LoopwiseApi, opts: ElectronAppOptions): vo
       cohorts.add(realPathOf('cohort' in arg ? arg.cohort.dir : arg.dir));
     }
     const fn = api[method] as (...a: unknown[]) => Promise<unknown>;
-    return fn.apply(api, checked.args);
+    try {
+      return await fn.apply(api, checked.args);
+    } catch (e) {
+      // Electron's IPC carries only an error's message: an output folder's refusal code travels at
+      // its end, in brackets, where the renderer reads it (as the HTTP door's `code` field).
+      const code = (e as { code?: unknown }).code;
+      if (e instanceof Error && e.name === 'OutDirError' && typeof code === 'string')
+        throw new Error(`${e.message} [${code}]`);
+      throw e;
+    }
   });
 
   const windows = new Set<BrowserWindow>();

@@ -115,6 +115,33 @@ describe('export, then the next run', () => {
   });
 });
 
+describe('a refused export in the desktop app', () => {
+  it('reads the refusal’s code from the end of an IPC message and offers to replace', async () => {
+    const api = createFakeApi({ root: '/data/sample' });
+    const ipcExport: LoopwiseDoor['exportRun'] = async (runId, dir, overwrite) => {
+      if (!overwrite)
+        throw new Error(
+          `Error invoking remote method 'loopwise:call': Error: ${dir} already holds the tables of an earlier Loopwise run. Replace them, or choose another folder. [finished-run]`,
+        );
+      return api.exportRun(runId, dir, overwrite);
+    };
+    const session = new Session(door(api, { exportRun: ipcExport }));
+    await session.init();
+    await session.openCohort('/data/sample');
+    await session.startRun();
+    await waitFor(() => expect(session.results).not.toBeNull(), { timeout: 5000 });
+    await session.exportRun('/data/out/x', false);
+    expect(session.exportProblem).toEqual({
+      dir: '/data/out/x',
+      message:
+        '/data/out/x already holds the tables of an earlier Loopwise run. Replace them, or choose another folder.',
+      replace: true,
+    });
+    await session.exportRun('/data/out/x', true);
+    expect(session.exported?.files).toEqual(['/data/out/x/features.tsv']);
+  });
+});
+
 describe('reload, earlier runs and disconnection', () => {
   it('a reload mid-run reattaches to the run with its progress and keeps the choices', async () => {
     const api = createFakeApi({ root: '/data/sample' });

@@ -136,6 +136,13 @@ describe('Electron IPC', () => {
     await expect(call('exportRun', ['run-1', join(out, 'tables'), true])).resolves.toBeTruthy();
   });
 
+  it('carries an output folder refusal’s code at the end of the message (IPC keeps only messages)', async () => {
+    await expect(call('exportRun', ['run-1', join(out, 'taken'), false])).rejects.toThrow(
+      /already holds results; .* \[finished-run\]$/,
+    );
+    await expect(call('exportRun', ['run-1', join(out, 'taken'), true])).resolves.toBeTruthy();
+  });
+
   it('lists the session’s runs (listRuns) and takes no arguments for it', async () => {
     const { settings, stats } = await api.defaultSettings();
     const { runId } = (await call('startRun', [

@@ -390,12 +390,12 @@ export class Session {
       const r = await this.door.exportRun(runId, dir, replace);
       this.exported = { dir, files: r.files };
     } catch (e) {
-      const code = (e as { code?: unknown }).code;
-      const message = plainMessage(e);
-      // Electron's IPC carries only the message: the service's words for these refusals say it.
-      const replaceable =
-        (typeof code === 'string' && REPLACEABLE.has(code)) ||
-        (code === undefined && !replace && /already holds|holds an unfinished/.test(message));
+      // The HTTP door sends the refusal's code as a field; Electron's IPC at the message's end.
+      const tagged = / \[(finished-run|foreign-files|unfinished-run)\]$/.exec(plainMessage(e));
+      const given = (e as { code?: unknown }).code;
+      const code = typeof given === 'string' ? given : (tagged?.[1] ?? null);
+      const message = tagged ? plainMessage(e).slice(0, tagged.index) : plainMessage(e);
+      const replaceable = code !== null && REPLACEABLE.has(code);
       this.exportProblem = { dir, message, replace: replaceable && !replace };
     } finally {
       this.exporting = false;
