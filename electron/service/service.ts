@@ -52,6 +52,7 @@ import { SHARD_DIR, checkShard, readShards, shardLockName, shareOf, writeShardMa
 import type { ShardManifest } from './shards.ts';
 import { assembleCohortResults, assembleSubjectResult } from './results.ts';
 import { ComparisonError, compareSides } from './compare.ts';
+import { REPORT_FILE, buildReport } from './report.ts';
 import { makeStageContext } from './stage-context.ts';
 import { cohortStages } from './stages.ts';
 import { runFiltrationStage } from './pipeline.ts';
@@ -464,9 +465,28 @@ export class LoopwiseService implements LoopwiseApi {
       };
       if (folder) await ctx.writeJson(tableNames(format).provenance, state.provenance);
     }
-    if (folder && !state.cancelRequested)
+    if (folder && !state.cancelRequested) {
+      // A run whose stage failed writes no report: its results are incomplete, and say so in its summary.
+      if (state.stageFailures.length === 0) await this.writeReport(state, folder);
       await folder.finish(state.stageFailures.length > 0 ? 'failed' : 'complete');
+    }
     return folder ? folder.files() : [];
+  }
+
+  /** report.html from the results the run holds (written last, so it can name every table beside it). */
+  private async writeReport(state: RunState, folder: OutputFolder): Promise<void> {
+    const results = await assembleCohortResults({ ...state, status: 'done' });
+    if (!results) return;
+    const leftOut = (state.run?.records ?? [])
+      .filter((r) => r.status !== 'analysed')
+      .map((r) => ({ subject: r.id, reason: r.reason ?? r.status }));
+    const html = buildReport({
+      results,
+      cohort: state.report,
+      leftOut,
+      files: [...folder.files(), REPORT_FILE],
+    });
+    await folder.writeFile(REPORT_FILE, html);
   }
 
   /**
