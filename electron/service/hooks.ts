@@ -69,7 +69,20 @@ export interface TableSink {
   abort(): Promise<void>;
 }
 
-export type StageOutput = Partial<Omit<CohortResults, 'runId' | 'provenance'>>;
+/** What the stages make; results.ts assembles the doors' answers from it. */
+export interface StageOutput {
+  grid?: number[];
+  features?: Table;
+  /** Long form as nodes.tsv: participant_id (session), node, label, network, measure, value. */
+  nodeScores?: Table;
+  groupCurves?: CohortResults['groupCurves'];
+  groupDiagrams?: CohortResults['groupDiagrams'];
+  /** As stats.tsv (STATS_COLUMNS). */
+  stats?: Table | null;
+  /** As diagram-tests.tsv (DIAGRAM_TEST_COLUMNS). */
+  diagramTests?: Table | null;
+  embedding?: CohortResults['embedding'];
+}
 
 export interface RunHooks {
   groupFiltrations?(ctx: StageContext): Promise<StageOutput>;

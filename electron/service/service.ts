@@ -26,10 +26,14 @@ import type {
   OpenCohortRequest,
   ProgressEvent,
   Provenance,
+  RegionEffects,
+  RegionValues,
   RunSummary,
   StartRunRequest,
   StatsSettings,
   SubjectResult,
+  TablePage,
+  TablePageRequest,
 } from '../api.ts';
 import { WorkerPool, defaultPoolSize } from '../workers/pool.ts';
 import { FiltrationCache } from './cache.ts';
@@ -48,7 +52,13 @@ import type { OutputFolder } from './outdir.ts';
 import { openRunFolder } from './run-folder.ts';
 import { SHARD_DIR, checkShard, readShards, shardLockName, shareOf, writeShardManifest } from './shards.ts';
 import type { ShardManifest } from './shards.ts';
-import { assembleCohortResults, assembleSubjectResult } from './results.ts';
+import {
+  assembleCohortResults,
+  assembleRegionEffects,
+  assembleRegionValues,
+  assembleSubjectResult,
+  assembleTablePage,
+} from './results.ts';
 import { makeStageContext } from './stage-context.ts';
 import { cohortStages } from './stages.ts';
 import { runFiltrationStage } from './pipeline.ts';
@@ -573,6 +583,21 @@ export class LoopwiseService implements LoopwiseApi {
   async subjectResult(runId: string, subjectId: string): Promise<SubjectResult | null> {
     const s = this.runs.get(runId);
     return s ? assembleSubjectResult(s, subjectId) : null;
+  }
+
+  async regionEffects(runId: string, measure: string): Promise<RegionEffects | null> {
+    const s = this.runs.get(runId);
+    return s ? assembleRegionEffects(s, measure) : null;
+  }
+
+  async regionValues(runId: string, measure: string, node: number): Promise<RegionValues | null> {
+    const s = this.runs.get(runId);
+    return s ? assembleRegionValues(s, measure, node) : null;
+  }
+
+  async tablePage(runId: string, req: TablePageRequest): Promise<TablePage | null> {
+    const s = this.runs.get(runId);
+    return s ? assembleTablePage(s, req) : null;
   }
 
   async exportRun(runId: string, outDir: string, overwrite: boolean): Promise<{ files: string[] }> {
