@@ -343,11 +343,10 @@ export interface SubjectResult {
  * One region's result for a node measure: the stats.tsv row of the tested model (when the run
  * tested it) under stats.tsv's column names, plus the region's identity and its mean.
  */
-export interface RegionEffect
-  extends Pick<
-    StatsRow,
-    'statistic' | 'p_uncorrected' | 'p_fwer' | 'q_fdr' | 'effect_size' | 'effect_low' | 'effect_high'
-  > {
+export interface RegionEffect extends Pick<
+  StatsRow,
+  'statistic' | 'p_uncorrected' | 'p_fwer' | 'q_fdr' | 'effect_size' | 'effect_low' | 'effect_high'
+> {
   /** 0-based index in file order (nodes.tsv's `node`). */
   node: number;
   /** 1-based number shown in the app (node + 1). */

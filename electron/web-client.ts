@@ -268,9 +268,13 @@ export function checkTablePage(v: unknown): TablePageRequest {
   };
   if (v.sort !== undefined && v.sort !== null) {
     if (!isObj(v.sort)) throw new BadRequest('sort must be { column, descending }');
-    req.sort = { column: str(v.sort.column, 'sort.column', 256), descending: bool(v.sort.descending, 'sort.descending') };
+    req.sort = {
+      column: str(v.sort.column, 'sort.column', 256),
+      descending: bool(v.sort.descending, 'sort.descending'),
+    };
   }
-  if (v.filter !== undefined && v.filter !== null && v.filter !== '') req.filter = str(v.filter, 'filter', 256);
+  if (v.filter !== undefined && v.filter !== null && v.filter !== '')
+    req.filter = str(v.filter, 'filter', 256);
   if (v.equals !== undefined && v.equals !== null) {
     if (!isObj(v.equals)) throw new BadRequest('equals must be an object of column → value');
     const equals: Record<string, string | number> = {};
@@ -362,8 +366,7 @@ export function createHttpClient(opts: HttpClientOptions): LoopwiseDoor {
     cohortResults: (runId) => call<CohortResults | null>('cohortResults', [runId]),
     subjectResult: (runId, subjectId) => call<SubjectResult | null>('subjectResult', [runId, subjectId]),
     regionEffects: (runId, measure) => call<RegionEffects | null>('regionEffects', [runId, measure]),
-    regionValues: (runId, measure, node) =>
-      call<RegionValues | null>('regionValues', [runId, measure, node]),
+    regionValues: (runId, measure, node) => call<RegionValues | null>('regionValues', [runId, measure, node]),
     tablePage: (runId, req) => call<TablePage | null>('tablePage', [runId, req]),
     exportRun: (runId, outDir, overwrite) =>
       call<{ files: string[] }>('exportRun', [runId, outDir, overwrite]),

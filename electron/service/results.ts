@@ -414,7 +414,8 @@ export function assembleTablePage(s: RunView, req: TablePageRequest): TablePage 
   const { columns } = source;
   const col = (name: string) => {
     const i = columns.indexOf(name);
-    if (i < 0) throw new ResultQueryError(`${req.table} has no column ${name}; its columns: ${columns.join(', ')}`);
+    if (i < 0)
+      throw new ResultQueryError(`${req.table} has no column ${name}; its columns: ${columns.join(', ')}`);
     return i;
   };
   const equals = Object.entries(req.equals ?? {}).map(([c, v]) => [col(c), v] as const);

@@ -82,7 +82,8 @@ describe.skipIf(!hasChromium)('no freezes on a 120 × 200 cohort without a node 
     if (cohortDir) rmSync(cohortDir, { recursive: true, force: true });
     if (longest.length) {
       console.log(`longest main-thread task per step (${SUBJECTS} subjects × ${REGIONS} regions):`);
-      for (const l of longest) console.log(`  ${l.step.padEnd(34)} ${String(l.ms).padStart(6)} ms  (${l.tasks} long tasks)`);
+      for (const l of longest)
+        console.log(`  ${l.step.padEnd(34)} ${String(l.ms).padStart(6)} ms  (${l.tasks} long tasks)`);
     }
   });
 
@@ -123,7 +124,10 @@ describe.skipIf(!hasChromium)('no freezes on a 120 × 200 cohort without a node 
 
     await measure('Regions: another measure', async () => {
       const options = await page.locator('select[name=measure] option').allTextContents();
-      const next = await page.locator('select[name=measure] option').nth(options.length > 1 ? 1 : 0).getAttribute('value');
+      const next = await page
+        .locator('select[name=measure] option')
+        .nth(options.length > 1 ? 1 : 0)
+        .getAttribute('value');
       await page.locator('select[name=measure]').selectOption(next!);
       await drawn(`regions-${next}`);
     });

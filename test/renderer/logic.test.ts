@@ -217,7 +217,10 @@ describe('Groups', () => {
     expect(usesOnlySvg(fig)).toBe(true);
 
     expect(results.featureNames).toEqual(['h1_count', 'h1_total_persistence']);
-    expect(featureColumns(results.features, results.featureNames)).toEqual(['h1_count', 'h1_total_persistence']);
+    expect(featureColumns(results.features, results.featureNames)).toEqual([
+      'h1_count',
+      'h1_total_persistence',
+    ]);
     const split = featureByGroup(results.features, 'h1_count', 'group');
     expect(split.map((s) => [s.group, s.values.length])).toEqual([
       ['control', 5],
@@ -247,8 +250,18 @@ describe('Regions', () => {
     const fig = rankedBarFigure(e, 0, 10);
     const bar = fig.data[0] as { x: number[]; y: string[]; customdata: number[] };
     // The chart draws the service's numbers, largest at the top (the last category), nothing recomputed.
-    expect(bar.x).toEqual(e.regions.slice(0, 10).reverse().map((r) => r.effect_size));
-    expect(bar.customdata).toEqual(e.regions.slice(0, 10).reverse().map((r) => r.node));
+    expect(bar.x).toEqual(
+      e.regions
+        .slice(0, 10)
+        .reverse()
+        .map((r) => r.effect_size),
+    );
+    expect(bar.customdata).toEqual(
+      e.regions
+        .slice(0, 10)
+        .reverse()
+        .map((r) => r.node),
+    );
     expect(bar.y.every((y) => /^R\d+( \*)?$/.test(y))).toBe(true);
     expect((fig.layout.yaxis as { type: string }).type).toBe('category');
     expect(JSON.stringify(fig.layout)).toContain('partial r');
@@ -515,7 +528,13 @@ describe('defaults chosen for the user', () => {
     const s = (await fake.subjectResult(runId, 'sub-02'))!;
     const rows = nodeScoreRows(s, []);
     expect(rows.columns).toEqual(['region', 'label', 'network', 'strength', 'participation']);
-    expect(rows.rows[1]).toEqual([2, 'region 2', null, s.nodeScores.strength[1], s.nodeScores.participation[1]]);
+    expect(rows.rows[1]).toEqual([
+      2,
+      'region 2',
+      null,
+      s.nodeScores.strength[1],
+      s.nodeScores.participation[1],
+    ]);
   });
 });
 

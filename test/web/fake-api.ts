@@ -20,7 +20,11 @@ import type {
 } from '../../electron/api.ts';
 import type { StageOutput } from '../../electron/service/hooks.ts';
 import { defaultStatsSettings } from '../../electron/contract.ts';
-import { DIAGRAM_TEST_COLUMNS, NODE_TABLE_COLUMNS, STATS_COLUMNS } from '../../electron/engine/features/columns.ts';
+import {
+  DIAGRAM_TEST_COLUMNS,
+  NODE_TABLE_COLUMNS,
+  STATS_COLUMNS,
+} from '../../electron/engine/features/columns.ts';
 import { tTwoSidedP } from '../../electron/engine/stats/special.ts';
 import type { FiltrationCache } from '../../electron/service/cache.ts';
 import {
@@ -238,15 +242,29 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
     const nodeRows: Table['rows'] = [];
     for (const s of subs)
       for (const [measure, values] of Object.entries(s.nodeScores))
-        values.forEach((v, node) => nodeRows.push([s.id, node, `R${node + 1}`, NETWORKS[node % 4], measure, v]));
+        values.forEach((v, node) =>
+          nodeRows.push([s.id, node, `R${node + 1}`, NETWORKS[node % 4], measure, v]),
+        );
     const statRows: Array<ReturnType<typeof test>> = [
-      test('features', 'h1_count', null, subs.map((s) => s.diagrams[1].length)),
+      test(
+        'features',
+        'h1_count',
+        null,
+        subs.map((s) => s.diagrams[1].length),
+      ),
       test('features', 'h1_total_persistence', null, subs.map(total)),
     ];
     for (const measure of ['strength', 'participation']) {
       const family = statRows.length;
       for (let node = 0; node < N; node++)
-        statRows.push(test(`nodes:${measure}`, measure, `R${node + 1}`, subs.map((s) => s.nodeScores[measure][node] as number)));
+        statRows.push(
+          test(
+            `nodes:${measure}`,
+            measure,
+            `R${node + 1}`,
+            subs.map((s) => s.nodeScores[measure][node] as number),
+          ),
+        );
       // Bonferroni over the family's nodes (a valid FWER bound).
       for (const row of statRows.slice(family)) row.p_fwer = Math.min(1, (row.p_uncorrected as number) * N);
     }
@@ -262,7 +280,24 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
       stats: { columns: [...STATS_COLUMNS], rows: statRows.map((r) => STATS_COLUMNS.map((c) => r[c])) },
       diagramTests: {
         columns: [...DIAGRAM_TEST_COLUMNS],
-        rows: [['H1', 'wasserstein-2', 'joint-loss', 0.31, null, null, 0.04, 'control:5 patient:4', 'random', 999, 42, null, 'freedman-lane', 'group']],
+        rows: [
+          [
+            'H1',
+            'wasserstein-2',
+            'joint-loss',
+            0.31,
+            null,
+            null,
+            0.04,
+            'control:5 patient:4',
+            'random',
+            999,
+            42,
+            null,
+            'freedman-lane',
+            'group',
+          ],
+        ],
       },
       embedding: subs.map((s, k) => ({
         subject: s.id,

@@ -26,7 +26,11 @@ function once<T>(door: object, key: string, ask: () => Promise<T>): Promise<T> {
   return p;
 }
 
-export function regionEffectsOf(door: LoopwiseApi, runId: string, measure: string): Promise<RegionEffects | null> {
+export function regionEffectsOf(
+  door: LoopwiseApi,
+  runId: string,
+  measure: string,
+): Promise<RegionEffects | null> {
   return once(door, `effects\u0000${runId}\u0000${measure}`, () => door.regionEffects(runId, measure));
 }
 

@@ -95,7 +95,12 @@ export function rankedBarFigure(e: RegionEffects, page: number, perPage = REGION
         margin: { l: 140, r: 20, t: 40, b: 50 },
         xaxis: { title: { text: name }, zeroline: true },
         // Category axis: names are never read as numbers; order as given (largest at the top).
-        yaxis: { type: 'category', automargin: true, categoryorder: 'array', categoryarray: rows.map((r) => (r.significant ? `${r.label} *` : r.label)) },
+        yaxis: {
+          type: 'category',
+          automargin: true,
+          categoryorder: 'array',
+          categoryarray: rows.map((r) => (r.significant ? `${r.label} *` : r.label)),
+        },
       },
     ),
   };
@@ -119,7 +124,8 @@ export function nodeMapFigure(layout: NodeLayout, e: RegionEffects, nodes: NodeI
       x: layout.nodes.map((n) => n.x),
       y: layout.nodes.map((n) => n.y),
       text: layout.nodes.map(
-        (n, k) => `${byNode.get(n.index)?.label ?? n.label}${n.network ? ` (${n.network})` : ''}<br>${name} = ${fmt(v[k])}`,
+        (n, k) =>
+          `${byNode.get(n.index)?.label ?? n.label}${n.network ? ` (${n.network})` : ''}<br>${name} = ${fmt(v[k])}`,
       ),
       customdata: layout.nodes.map((n) => n.index),
       hovertemplate: '%{text}<extra></extra>',
@@ -136,7 +142,11 @@ export function nodeMapFigure(layout: NodeLayout, e: RegionEffects, nodes: NodeI
     },
   ];
   if (circle) traces.push(...networkLabels(layout, nodes));
-  const title = circle ? 'Regions by network' : layout.kind === 'axial' ? 'Axial (from above)' : 'Sagittal (from the side)';
+  const title = circle
+    ? 'Regions by network'
+    : layout.kind === 'axial'
+      ? 'Axial (from above)'
+      : 'Sagittal (from the side)';
   return {
     name: `regions-${e.measure}-${layout.kind}`,
     data: traces,

@@ -7,7 +7,11 @@ import type {
   Severity,
   StatsSettings,
 } from '../../../electron/api.ts';
-import { designGroupColumn as designGroupColumn_, formulaColumns, statisticsRequested } from '../../../electron/contract.ts';
+import {
+  designGroupColumn as designGroupColumn_,
+  formulaColumns,
+  statisticsRequested,
+} from '../../../electron/contract.ts';
 
 export interface ParticipantRow {
   id: string;
@@ -251,7 +255,10 @@ export function proposedDesign(report: CohortReport, st: StatsSettings): StatsSe
  */
 export function designGroupColumn(st: StatsSettings | null, report: CohortReport | null): string | null {
   // The contract's rule (the service uses the same), with the cohort's column kinds.
-  return designGroupColumn_(st, (name) => report?.columns.find((c) => c.name === name)?.kind === 'categorical');
+  return designGroupColumn_(
+    st,
+    (name) => report?.columns.find((c) => c.name === name)?.kind === 'categorical',
+  );
 }
 
 /** A line under the design fields for a cohort whose scans come in sessions, or null without sessions. */

@@ -193,7 +193,9 @@ export function heatmapFigure(s: SubjectResult, nodes: NodeInfo[]): Figure {
       if (i !== j && Number.isFinite(row[j])) maxAbs = Math.max(maxAbs, Math.abs(row[j]));
     z.push(row);
   }
-  const labels = Array.from({ length: s.n }, (_, i) => regionName(i, nodes.length === s.n ? nodes[i].label : null));
+  const labels = Array.from({ length: s.n }, (_, i) =>
+    regionName(i, nodes.length === s.n ? nodes[i].label : null),
+  );
   return {
     name: `matrix-${s.id}`,
     data: [
