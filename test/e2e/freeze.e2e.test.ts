@@ -168,7 +168,33 @@ describe.skipIf(!hasChromium)('no freezes on a 120 × 200 cohort without a node 
   });
 });
 
-/** What the Regions view must show for a cohort without a node table (filled in with the view). */
-async function regionsChecks(_measure: string): Promise<void> {
+/**
+ * What the Regions view must show for a cohort without a node table: bars named "region k" on a
+ * category axis (never a number line), the count of every region, every page reachable, and a
+ * click on a bar showing that region's values per scan by group.
+ */
+async function regionsChecks(measure: string): Promise<void> {
+  const chart = plot(`regions-${measure}`);
+  const names = await chart.locator('.ytick text').allTextContents();
+  expect(names.length).toBeGreaterThan(0);
+  for (const n of names) expect(n).toMatch(/^region \d+( \*)?$/);
+  const count = page.getByTestId('region-count');
+  expect(await count.textContent()).toMatch(new RegExp(`^Ranks 1–50 of ${REGIONS} regions`));
+  // The last page holds the last ranks: every region is reachable.
+  for (let k = 1; k < REGIONS / 50; k++) await page.getByRole('button', { name: 'Next' }).click();
+  await expect
+    .poll(() => count.textContent())
+    .toMatch(new RegExp(`^Ranks ${REGIONS - 49}–${REGIONS} of ${REGIONS}`));
+  expect(await page.getByRole('button', { name: 'Next' }).isDisabled()).toBe(true);
+  await page.getByRole('button', { name: 'Previous' }).click();
+  // A click on the top bar shows its values per scan, one box per group.
+  const bar = chart.locator('.barlayer .point').last();
+  const box = await bar.boundingBox();
+  expect(box).not.toBeNull();
+  await page.mouse.click(box!.x + box!.width / 2, box!.y + box!.height / 2);
+  const values = page.getByTestId('region-values').locator('.plot');
+  await values.locator('.main-svg').first().waitFor({ timeout: 30_000 });
+  expect(await values.getAttribute('data-figure')).toMatch(new RegExp(`^region-${measure}-\\d+$`));
+  expect(await values.locator('.boxlayer .trace').count()).toBe(2);
   await page.screenshot({ path: join(artefacts, 'freeze-regions.png'), fullPage: true });
 }

@@ -32,8 +32,26 @@ export const PLOT_CONFIG = {
   modeBarButtonsToRemove: ['toImage', 'sendDataToCloud', 'select2d', 'lasso2d'],
 };
 
-export async function draw(el: HTMLElement, fig: Figure): Promise<PlotlyLike> {
-  const Plotly = await loadPlotly();
-  await Plotly.react(el, fig.data, { autosize: true, ...fig.layout }, PLOT_CONFIG);
-  return Plotly;
+/** The end of the queue of pending draws: charts are drawn one at a time, each in a task of its own. */
+let queue: Promise<unknown> = Promise.resolve();
+
+/** A new task: lets the page handle input and paint between two charts. */
+function nextTask(): Promise<void> {
+  return new Promise((ok) => setTimeout(ok, 0));
+}
+
+/**
+ * Draws a figure into el. Draws are queued and each starts in a task of its own, so a view with
+ * several charts never holds the main thread for all of them at once (a long task freezes the
+ * page); a chart whose element left the page meanwhile is skipped.
+ */
+export function draw(el: HTMLElement, fig: Figure): Promise<PlotlyLike> {
+  const turn = queue.then(async () => {
+    await nextTask();
+    const Plotly = await loadPlotly();
+    if (el.isConnected) await Plotly.react(el, fig.data, { autosize: true, ...fig.layout }, PLOT_CONFIG);
+    return Plotly;
+  });
+  queue = turn.catch(() => undefined);
+  return turn;
 }
