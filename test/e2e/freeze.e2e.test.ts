@@ -27,7 +27,7 @@ let app: RunningApp;
 let browser: Browser;
 let page: Page;
 let cohortDir: string;
-const longest: Array<{ step: string; ms: number; tasks: number }> = [];
+const longest: Array<{ step: string; ms: number; tasks: number; chart: string }> = [];
 
 const tab = (name: string) => page.locator('nav').getByRole('button', { name, exact: true }).click();
 const plot = (name: string) => page.locator(`.plot[data-figure="${name}"]`);
@@ -56,7 +56,17 @@ async function measure(step: string, action: () => Promise<void>): Promise<void>
         .map((t) => t.duration),
     mark,
   );
-  longest.push({ step, ms: Math.round(Math.max(0, ...tasks)), tasks: tasks.length });
+  // The slowest chart drawn in the step (user-timing entries of lib/plotly.ts draw()).
+  const chart = await page.evaluate(
+    (since) =>
+      performance
+        .getEntriesByType('measure')
+        .filter((m) => m.name.startsWith('draw ') && m.startTime >= since)
+        .sort((a, b) => b.duration - a.duration)
+        .map((m) => `${m.name.slice(5)} ${Math.round(m.duration)} ms`)[0] ?? '',
+    mark,
+  );
+  longest.push({ step, ms: Math.round(Math.max(0, ...tasks)), tasks: tasks.length, chart });
 }
 
 describe.skipIf(!hasChromium)('no freezes on a 120 × 200 cohort without a node table', () => {
@@ -83,7 +93,9 @@ describe.skipIf(!hasChromium)('no freezes on a 120 × 200 cohort without a node 
     if (longest.length) {
       console.log(`longest main-thread task per step (${SUBJECTS} subjects × ${REGIONS} regions):`);
       for (const l of longest)
-        console.log(`  ${l.step.padEnd(34)} ${String(l.ms).padStart(6)} ms  (${l.tasks} long tasks)`);
+        console.log(
+          `  ${l.step.padEnd(34)} ${String(l.ms).padStart(6)} ms  (${l.tasks} long tasks)${l.chart ? `; slowest chart: ${l.chart}` : ''}`,
+        );
     }
   });
 
