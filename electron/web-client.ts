@@ -7,6 +7,8 @@ import type {
   AnalysisSettings,
   CohortReport,
   CohortResults,
+  Comparison,
+  ComparisonSide,
   LoopwiseApi,
   OpenCohortRequest,
   ProgressEvent,
@@ -61,6 +63,7 @@ export const API_METHODS = [
   'regionEffects',
   'regionValues',
   'tablePage',
+  'compare',
   'exportRun',
 ] as const;
 export type ApiMethod = (typeof API_METHODS)[number];
@@ -242,6 +245,12 @@ export function checkCall(method: ApiMethod, args: unknown[]): CheckedCall {
     case 'tablePage':
       arity(args, 2, method);
       return { args: [id(args[0], 'runId'), checkTablePage(args[1])], paths: [] };
+    case 'compare':
+      arity(args, 3, method);
+      return {
+        args: [id(args[0], 'runId'), comparisonSide(args[1], 'a'), comparisonSide(args[2], 'b')],
+        paths: [],
+      };
     case 'exportRun': {
       arity(args, 3, method);
       const outDir = str(args[1], 'outDir');
@@ -286,6 +295,15 @@ export function checkTablePage(v: unknown): TablePageRequest {
     req.equals = equals;
   }
   return req;
+}
+
+/** A comparison side rebuilt from scratch: {kind: 'scan', id} or {kind: 'group', group}. */
+function comparisonSide(v: unknown, what: string): ComparisonSide {
+  if (!isObj(v))
+    throw new BadRequest(`${what} must be {"kind": "scan", "id": …} or {"kind": "group", "group": …}`);
+  if (v.kind === 'scan') return { kind: 'scan', id: str(v.id, `${what}.id`, 256) };
+  if (v.kind === 'group') return { kind: 'group', group: str(v.group, `${what}.group`, 256) };
+  throw new BadRequest(`${what}.kind must be "scan" or "group"`);
 }
 
 function cohortPaths(req: OpenCohortRequest): string[] {
@@ -368,6 +386,7 @@ export function createHttpClient(opts: HttpClientOptions): LoopwiseDoor {
     regionEffects: (runId, measure) => call<RegionEffects | null>('regionEffects', [runId, measure]),
     regionValues: (runId, measure, node) => call<RegionValues | null>('regionValues', [runId, measure, node]),
     tablePage: (runId, req) => call<TablePage | null>('tablePage', [runId, req]),
+    compare: (runId, a, b) => call<Comparison>('compare', [runId, a, b]),
     exportRun: (runId, outDir, overwrite) =>
       call<{ files: string[] }>('exportRun', [runId, outDir, overwrite]),
     onProgress(listener) {

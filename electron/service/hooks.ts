@@ -22,7 +22,7 @@ import type {
   SubjectEntry,
   Table,
 } from '../api.ts';
-import type { SquareMatrix } from '../engine/types.ts';
+import type { DistanceMatrix, SquareMatrix } from '../engine/types.ts';
 import type { CachedFiltration } from './cache.ts';
 import type { RunRecords, SubjectRecord, TableFormat } from './tables.ts';
 
@@ -72,6 +72,8 @@ export interface TableSink {
 /** What the stages make; results.ts assembles the doors' answers from it. */
 export interface StageOutput {
   grid?: number[];
+  diagramMetric?: CohortResults['diagramMetric'];
+  groupFiltrations?: CohortResults['groupFiltrations'];
   features?: Table;
   /** Long form as nodes.tsv: participant_id (session), node, label, network, measure, value. */
   nodeScores?: Table;
@@ -82,6 +84,8 @@ export interface StageOutput {
   /** As diagram-tests.tsv (DIAGRAM_TEST_COLUMNS). */
   diagramTests?: Table | null;
   embedding?: CohortResults['embedding'];
+  /** Each group's mean-matrix distances (for its Euler curve in comparisons); held by the run, never sent. */
+  groupDistances?: Map<string, DistanceMatrix>;
 }
 
 export interface RunHooks {

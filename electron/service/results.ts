@@ -21,7 +21,7 @@ import type {
   TablePage,
   TablePageRequest,
 } from '../api.ts';
-import { designGroupColumn, scanId } from '../contract.ts';
+import { scanId } from '../contract.ts';
 import {
   DIAGRAM_TEST_COLUMNS,
   NODE_TABLE_COLUMNS,
@@ -33,6 +33,7 @@ import {
 import type { FiltrationCache } from './cache.ts';
 import type { CohortSource } from './cohort-source.ts';
 import type { StageOutput } from './hooks.ts';
+import { groupingColumn } from './stages.ts';
 import type { RunRecords } from './tables.ts';
 
 /** The parts of a run that results are assembled from. */
@@ -72,11 +73,9 @@ function finished(s: RunView): boolean {
   return (s.status === 'done' || s.status === 'failed') && s.run !== null && s.provenance !== null;
 }
 
-/** The design's grouping column (the contract's rule) for this run's cohort. */
+/** The design's grouping column for this run's cohort (the stages' rule, the contract's). */
 export function runGroupColumn(s: RunView): string | null {
-  if (!s.run) return null;
-  const kinds = new Map(s.report.columns.map((c) => [c.name, c.kind]));
-  return designGroupColumn(s.run.stats, (c) => kinds.get(c) === 'categorical');
+  return s.run ? groupingColumn(s.report, s.run.stats) : null;
 }
 
 /** The table's rows as typed objects; throws when its columns are not exactly the expected ones. */
@@ -186,6 +185,8 @@ export async function assembleCohortResults(s: RunView): Promise<CohortResults |
     groupColumn: runGroupColumn(s),
     groupCurves: r.groupCurves ?? [],
     groupDiagrams: r.groupDiagrams ?? [],
+    groupFiltrations: r.groupFiltrations ?? [],
+    ...(r.diagramMetric ? { diagramMetric: r.diagramMetric } : {}),
     featureTests: stats ? stats.filter((x) => x.family === 'features') : null,
     statsFamilies: stats ? [...families].map(([family, rows]) => ({ family, rows })) : null,
     diagramTests: r.diagramTests ? diagramTestRows(r.diagramTests) : null,

@@ -22,6 +22,8 @@ import type {
   AnalysisSettings,
   CohortReport,
   CohortResults,
+  Comparison,
+  ComparisonSide,
   LoopwiseApi,
   OpenCohortRequest,
   ProgressEvent,
@@ -59,6 +61,7 @@ import {
   assembleSubjectResult,
   assembleTablePage,
 } from './results.ts';
+import { ComparisonError, compareSides } from './compare.ts';
 import { makeStageContext } from './stage-context.ts';
 import { cohortStages } from './stages.ts';
 import { runFiltrationStage } from './pipeline.ts';
@@ -598,6 +601,12 @@ export class LoopwiseService implements LoopwiseApi {
   async tablePage(runId: string, req: TablePageRequest): Promise<TablePage | null> {
     const s = this.runs.get(runId);
     return s ? assembleTablePage(s, req) : null;
+  }
+
+  async compare(runId: string, a: ComparisonSide, b: ComparisonSide): Promise<Comparison> {
+    const s = this.runs.get(runId);
+    if (!s) throw new ComparisonError(`no run ${runId} in this session`);
+    return compareSides(s, a, b);
   }
 
   async exportRun(runId: string, outDir: string, overwrite: boolean): Promise<{ files: string[] }> {

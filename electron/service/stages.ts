@@ -15,7 +15,15 @@
  * Where the cohort has sessions, every per-scan table has a `session` column right after
  * participant_id (which then holds the participant, shared by its scans).
  */
-import type { CohortReport, CurveBand, NodeInfo, StatsSettings, SubjectEntry, Table } from '../api.ts';
+import type {
+  CohortReport,
+  CurveBand,
+  GroupFiltration,
+  NodeInfo,
+  StatsSettings,
+  SubjectEntry,
+  Table,
+} from '../api.ts';
 import {
   curveBands,
   featureTable,
@@ -29,8 +37,9 @@ import {
 } from '../engine/features/index.ts';
 import type { FeatureRow } from '../engine/features/index.ts';
 import { computePersistence } from '../engine/persistence.ts';
+import { wholeDiagramMetric } from '../engine/stats/compare.ts';
 import { buildDesign } from '../engine/stats/design.ts';
-import { parseTerm } from '../engine/stats/formula.ts';
+import { designGroupColumn } from '../contract.ts';
 import type { Design, DesignSpec, DesignSubject } from '../engine/stats/design.ts';
 import { diagramDistanceMatrix, finiteDiagram, metricName } from '../engine/stats/diagram-distance.ts';
 import type { DiagramInput, DiagramMetric } from '../engine/stats/diagram-distance.ts';
@@ -93,7 +102,7 @@ export function cohortStages(): RunHooks {
     return entries.get(id);
   };
   const groupOf = (ctx: StageContext, id: string): string | null => {
-    const col = groupingColumn(ctx);
+    const col = groupingColumn(ctx.report, ctx.stats);
     if (!col) return null;
     const v = entryOf(ctx, id)?.covariates[col];
     return v === null || v === undefined ? null : String(v);
@@ -108,7 +117,7 @@ export function cohortStages(): RunHooks {
 
   return {
     async groupFiltrations(ctx) {
-      const col = groupingColumn(ctx);
+      const col = groupingColumn(ctx.report, ctx.stats);
       if (!col) return {};
       const settings = ctx.run.settings;
       const groups = new Map<string, SubjectEntry[]>();
@@ -122,6 +131,8 @@ export function cohortStages(): RunHooks {
       const intervals: Table = { columns: ['group', 'dimension', 'birth', 'death', 'nodes'], rows: [] };
       const nodeRows: Array<{ subject: string; scores: Record<string, number[]> }> = [];
       const groupDiagrams: StageOutput['groupDiagrams'] = [];
+      const groupFiltrations: GroupFiltration[] = [];
+      const groupDistances = new Map<string, DistanceMatrix>();
       let done = 0;
       for (const [g, entries] of [...groups].sort((a, b) => a[0].localeCompare(b[0]))) {
         if (ctx.cancelled()) break;
@@ -136,14 +147,26 @@ export function cohortStages(): RunHooks {
           representatives: settings.representatives,
         });
         const mapped = mapToRead(r, kept, mean.n);
-        groupDiagrams.push({
+        const diagrams = mapped.diagrams.map((dg) =>
+          dg.map((iv) => [iv.birth, Number.isFinite(iv.death) ? iv.death : null] as [number, number | null]),
+        );
+        groupDiagrams.push({ group: g, diagrams });
+        const scores = maskDropped(subjectNodeScores(mapped, settings), kept, mean.n);
+        groupFiltrations.push({
           group: g,
-          diagrams: mapped.diagrams.map((dg) =>
-            dg.map(
-              (iv) => [iv.birth, Number.isFinite(iv.death) ? iv.death : null] as [number, number | null],
-            ),
-          ),
+          scans: entries.length,
+          nodeCount: mean.n,
+          threshold: Number.isFinite(mapped.threshold) ? mapped.threshold : null,
+          diagrams,
+          representatives: (mapped.representatives ?? []).map((rep) => ({
+            birth: rep.birth,
+            death: Number.isFinite(rep.death) ? rep.death : null,
+            nodes: rep.nodes,
+            edges: rep.edges,
+          })),
+          nodeScores: scores,
         });
+        groupDistances.set(g, distances);
         mapped.diagrams.forEach((dg, d) =>
           dg.forEach((iv, k) =>
             intervals.rows.push([
@@ -155,14 +178,14 @@ export function cohortStages(): RunHooks {
             ]),
           ),
         );
-        nodeRows.push({ subject: g, scores: maskDropped(subjectNodeScores(mapped, settings), kept, mean.n) });
+        nodeRows.push({ subject: g, scores });
         done++;
       }
       await ctx.writeTable('group-intervals', intervals);
       const gn = nodeScoreTable(nodeRows, ctx.report.nodes);
       gn.columns[0] = 'group';
       await ctx.writeTable('group-nodes', gn);
-      return { groupDiagrams };
+      return { groupDiagrams, groupFiltrations, groupDistances };
     },
 
     async features(ctx) {
@@ -333,8 +356,7 @@ export function cohortStages(): RunHooks {
       const dimensions = diagramsBySubject[0]?.length ?? 0;
       const position = new Map(subjects.map((s, i) => [s, i]));
       const idx = design.ids.map((id) => position.get(id)!);
-      const metric: DiagramMetric =
-        idx.length <= 60 ? { kind: 'wasserstein', p: 2 } : { kind: 'sliced-wasserstein' };
+      const metric: DiagramMetric = wholeDiagramMetric(idx.length);
 
       // Permutation chunks and distance-matrix rows run on worker threads (as many as the run's
       // workers); each result depends on its task alone, so the tables are the same for any count.
@@ -470,7 +492,7 @@ export function cohortStages(): RunHooks {
           });
         }
         if (warnings.length > 0) await ctx.writeJson('stats-warnings.json', warnings);
-        return { stats, diagramTests, embedding };
+        return { stats, diagramTests, embedding, diagramMetric: metricName(metric) };
       } catch (e) {
         // A cancel terminates the pool: the tasks in flight reject, and the stage stops quietly.
         if (ctx.cancelled()) return {};
@@ -527,23 +549,14 @@ async function distanceMatrixOnPool(
  * text, or the first column holding text of a --model's --test term other than the --blocks
  * column (group for group:session).
  */
-function groupingColumn(ctx: StageContext): string | null {
-  const { groupColumn, effect, model, test, blocks } = ctx.stats;
-  if (groupColumn) return groupColumn;
-  const categorical = (col: string) =>
-    ctx.report.subjects.some((s) => {
+export function groupingColumn(report: CohortReport, stats: StatsSettings): string | null {
+  // The contract's rule (the renderer applies the same), a column holding text being categorical.
+  return designGroupColumn(stats, (col) =>
+    report.subjects.some((s) => {
       const v = s.covariates[col];
       return v !== null && v !== undefined && typeof v !== 'number';
-    });
-  if (effect) return categorical(effect) ? effect : null;
-  if (!model || !test) return null;
-  let term: string[];
-  try {
-    term = parseTerm(test);
-  } catch {
-    return null;
-  }
-  return term.find((c) => c !== blocks && categorical(c)) ?? null;
+    }),
+  );
 }
 
 /** The subject's distances as the filtration saw them (regions dropped, transform applied), or null when unreadable. */
@@ -594,13 +607,13 @@ async function streamingGroupMean(
   return { n, values };
 }
 
-function keptRegions(n: number, drop: number[]): Int32Array {
+export function keptRegions(n: number, drop: number[]): Int32Array {
   const d = new Set(drop);
   return Int32Array.from({ length: n }, (_, i) => i).filter((i) => !d.has(i));
 }
 
 /** Sets dropped regions' scores to NaN (written as NA). */
-function maskDropped(
+export function maskDropped(
   scores: Record<string, number[]>,
   kept: Int32Array,
   n: number,

@@ -14,7 +14,7 @@ import type { DoorInfo, LoopwiseDoor } from '../../../electron/web-client.ts';
 import { mergeFailures } from './progress.ts';
 import { proposedDesign } from './study.ts';
 
-export type ViewName = 'study' | 'analysis' | 'groups' | 'regions' | 'subject' | 'export';
+export type ViewName = 'study' | 'analysis' | 'groups' | 'regions' | 'subject' | 'compare' | 'export';
 
 export class Session {
   readonly door: LoopwiseDoor;
@@ -42,6 +42,10 @@ export class Session {
   // Raw (not deeply reactive): results are replaced whole, never edited, and proxying every cell
   // of their tables made each read slow.
   results = $state.raw<CohortResults | null>(null);
+
+  /** The Compare view's two sides, as 'scan:ID' or 'group:LEVEL' (kept across views). */
+  compareA = $state('');
+  compareB = $state('');
 
   subjectId = $state<string | null>(null);
   subject = $state.raw<SubjectResult | null>(null);
@@ -95,6 +99,8 @@ export class Session {
       this.progress = null;
       this.subject = null;
       this.subjectId = null;
+      this.compareA = '';
+      this.compareB = '';
       // The design in use where it fits this cohort, else one that does (sessions: group × session, blocks).
       if (this.stats) this.stats = proposedDesign(report, $state.snapshot(this.stats) as StatsSettings);
     });
