@@ -79,6 +79,8 @@ export function rankedBarFigure(e: RegionEffects, page: number, perPage = REGION
               ? `${r.effect_low !== null ? ` [${fmt(r.effect_low)}, ${fmt(r.effect_high)}]` : ''}<br>corrected p (FWER) = ${fmt(r.p_fwer, 2)}`
               : ''),
         ),
+        // The text is for the hover only, never written on the bars.
+        textposition: 'none',
         hovertemplate: '%{text}<extra></extra>',
         marker: {
           color: rows.map((r) => ((shownValue(r) ?? 0) >= 0 ? '#D55E00' : '#0072B2')),
