@@ -32,6 +32,29 @@ export const PLOT_CONFIG = {
   modeBarButtonsToRemove: ['toImage', 'sendDataToCloud', 'select2d', 'lasso2d'],
 };
 
+let warmed: Promise<void> | null = null;
+
+/**
+ * Evaluates Plotly and draws one empty chart off screen, so that its one-off costs (evaluating
+ * megabytes of script, the first draw's set-up) fall while the user waits for a run rather than
+ * when the first result view opens.
+ */
+export function warmPlotly(): Promise<void> {
+  warmed ??= loadPlotly().then(async (Plotly) => {
+    const el = document.createElement('div');
+    el.style.cssText = 'position:absolute;left:-10000px;top:0;width:400px;height:300px';
+    document.body.appendChild(el);
+    try {
+      await new Promise((ok) => setTimeout(ok, 0));
+      await Plotly.react(el, [{ type: 'scatter', x: [0, 1], y: [0, 1] }], { autosize: false }, PLOT_CONFIG);
+    } finally {
+      Plotly.purge(el);
+      el.remove();
+    }
+  });
+  return warmed;
+}
+
 /** The end of the queue of pending draws: charts are drawn one at a time, each in a task of its own. */
 let queue: Promise<unknown> = Promise.resolve();
 
