@@ -28,10 +28,14 @@ import type {
   OpenCohortRequest,
   ProgressEvent,
   Provenance,
+  RegionEffects,
+  RegionValues,
   RunSummary,
   StartRunRequest,
   StatsSettings,
   SubjectResult,
+  TablePage,
+  TablePageRequest,
 } from '../api.ts';
 import { WorkerPool, defaultPoolSize } from '../workers/pool.ts';
 import { FiltrationCache } from './cache.ts';
@@ -50,7 +54,13 @@ import type { OutputFolder } from './outdir.ts';
 import { openRunFolder } from './run-folder.ts';
 import { SHARD_DIR, checkShard, readShards, shardLockName, shareOf, writeShardManifest } from './shards.ts';
 import type { ShardManifest } from './shards.ts';
-import { assembleCohortResults, assembleSubjectResult } from './results.ts';
+import {
+  assembleCohortResults,
+  assembleRegionEffects,
+  assembleRegionValues,
+  assembleSubjectResult,
+  assembleTablePage,
+} from './results.ts';
 import { ComparisonError, compareSides } from './compare.ts';
 import { REPORT_FILE, buildReport } from './report.ts';
 import { makeStageContext } from './stage-context.ts';
@@ -596,6 +606,21 @@ export class LoopwiseService implements LoopwiseApi {
   async subjectResult(runId: string, subjectId: string): Promise<SubjectResult | null> {
     const s = this.runs.get(runId);
     return s ? assembleSubjectResult(s, subjectId) : null;
+  }
+
+  async regionEffects(runId: string, measure: string): Promise<RegionEffects | null> {
+    const s = this.runs.get(runId);
+    return s ? assembleRegionEffects(s, measure) : null;
+  }
+
+  async regionValues(runId: string, measure: string, node: number): Promise<RegionValues | null> {
+    const s = this.runs.get(runId);
+    return s ? assembleRegionValues(s, measure, node) : null;
+  }
+
+  async tablePage(runId: string, req: TablePageRequest): Promise<TablePage | null> {
+    const s = this.runs.get(runId);
+    return s ? assembleTablePage(s, req) : null;
   }
 
   async compare(runId: string, a: ComparisonSide, b: ComparisonSide): Promise<Comparison> {
