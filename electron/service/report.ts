@@ -6,10 +6,20 @@
  * provenance. Self-contained: one file, inline style, no scripts, no external resources.
  * Everything in it is read from the run's results: it computes no statistic of its own.
  */
-import type { CohortReport, CohortResults, Table } from '../api.ts';
+import type { CohortReport, Provenance, Table } from '../api.ts';
+
+/** What the report is written from: the run's provenance and its statistics tables as the files hold them. */
+export interface ReportResults {
+  provenance: Provenance;
+  diagramMetric?: string;
+  /** As stats.tsv (null: no statistics). */
+  stats: Table | null;
+  /** As diagram-tests.tsv. */
+  diagramTests: Table | null;
+}
 
 export interface ReportInput {
-  results: CohortResults;
+  results: ReportResults;
   cohort: CohortReport;
   /** Scans left out of the analysis (excluded by the cohort check or failed), with the reason. */
   leftOut: Array<{ subject: string; reason: string }>;
@@ -71,7 +81,7 @@ export function buildReport(input: ReportInput): string {
   const sections = [
     dataSection(input),
     methodsSection(input, cited),
-    resultsSection(results, cited),
+    resultsSection(results),
     referencesSection(cited),
     provenanceSection(results, input.files),
   ];
@@ -207,7 +217,7 @@ function hasJointLoss(t: Table): boolean {
   return testsOf(t).includes('joint-loss');
 }
 
-function resultsSection(results: CohortResults, _cited: Set<string>): string {
+function resultsSection(results: ReportResults): string {
   const out: string[] = ['<h2>Results</h2>'];
   const dt = results.diagramTests;
   if (dt && dt.rows.length) {
@@ -313,7 +323,7 @@ function referencesSection(cited: Set<string>): string {
   return `<h2>References</h2>\n<ol>${items.map((r) => `<li>${esc(r)}</li>`).join('')}</ol>`;
 }
 
-function provenanceSection(results: CohortResults, files: string[]): string {
+function provenanceSection(results: ReportResults, files: string[]): string {
   const p = results.provenance;
   const inputs = p.inputFiles ?? [];
   return `<h2>Provenance</h2>

@@ -507,8 +507,13 @@ export class LoopwiseService implements LoopwiseApi {
 
   /** report.html from the results the run holds (written last, so it can name every table beside it). */
   private async writeReport(state: RunState, folder: OutputFolder): Promise<void> {
-    const results = await assembleCohortResults({ ...state, status: 'done' });
-    if (!results) return;
+    if (!state.provenance) return;
+    const results = {
+      provenance: state.provenance,
+      diagramMetric: state.results.diagramMetric,
+      stats: state.results.stats ?? null,
+      diagramTests: state.results.diagramTests ?? null,
+    };
     const leftOut = (state.run?.records ?? [])
       .filter((r) => r.status !== 'analysed')
       .map((r) => ({ subject: r.id, reason: r.reason ?? r.status }));
