@@ -53,6 +53,8 @@ import { makeStageContext } from './stage-context.ts';
 import { cohortStages } from './stages.ts';
 import { runFiltrationStage } from './pipeline.ts';
 import type { ServiceCounters } from './pipeline.ts';
+import { featureTaskSettings } from '../workers/filtration.ts';
+import type { SubjectFeatures } from '../workers/filtration.ts';
 import {
   checkSettings,
   defaultAnalysisSettings,
@@ -105,6 +107,8 @@ interface RunState {
   run: RunRecords | null;
   provenance: Provenance | null;
   results: StageOutput;
+  /** Subjects' features computed by their workers in stage (1), taken by the features stage. */
+  subjectFeatures: Map<string, SubjectFeatures>;
   /** Stages (2)–(4) that failed: the run keeps what came before (e.g. features without statistics). */
   stageFailures: Array<{ subject: string; reason: string }>;
   summary: RunSummary | null;
@@ -122,6 +126,7 @@ function newRunState(
     pool: null,
     provenance: null,
     results: {},
+    subjectFeatures: new Map(),
     stageFailures: [],
     summary: null,
     done: Promise.resolve(null as unknown as RunSummary),
@@ -339,11 +344,13 @@ export class LoopwiseService implements LoopwiseApi {
           share,
           counters: this.counters,
           cancelled: () => state.cancelRequested,
+          ...(req.shard ? {} : { features: featureTaskSettings(req.settings) }),
           onStart: (entry) => {
             current = entry.id;
             computeStart ??= performance.now();
           },
-          onOutcome: ({ record, reused: r, computed: c }) => {
+          onOutcome: ({ record, reused: r, computed: c, features }) => {
+            if (features) state.subjectFeatures.set(record.id, features);
             done++;
             if (r) reused++;
             if (c) computed++;
@@ -434,6 +441,7 @@ export class LoopwiseService implements LoopwiseApi {
       format,
       emit: (e) => this.emit(e),
       cancelled: () => state.cancelRequested,
+      subjectFeatures: state.subjectFeatures,
       workers: this.pool?.size ?? this.options.workers ?? defaultPoolSize(),
     });
     for (const stage of ['groupFiltrations', 'features', 'statistics'] as const) {

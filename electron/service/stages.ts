@@ -19,13 +19,11 @@ import type { CohortReport, CurveBand, NodeInfo, StatsSettings, SubjectEntry, Ta
 import {
   curveBands,
   featureTable,
-  filtrationEnd,
-  grid,
+  GridRange,
   networkScoreTable,
   nodeScoreTable,
-  subjectCurves,
-  subjectFeatureRow,
   subjectNodeScores,
+  subjectOnGrid,
 } from '../engine/features/index.ts';
 import type { FeatureRow } from '../engine/features/index.ts';
 import { computePersistence } from '../engine/persistence.ts';
@@ -42,38 +40,13 @@ import { finishPermutationTest, preparePermutationTest } from '../engine/stats/p
 import { diagramTestsTable, statsTable } from '../engine/stats/tables.ts';
 import type { DiagramTestEntry } from '../engine/stats/tables.ts';
 import { toDistances } from '../engine/transform.ts';
-import type { DistanceMatrix, PersistenceResult, SquareMatrix } from '../engine/types.ts';
-import { dropRegions } from '../workers/filtration.ts';
+import type { PersistenceResult, SquareMatrix } from '../engine/types.ts';
+import { resultFromCache } from '../shared/filtration-record.ts';
+import { dropRegions, featureTaskSettings, subjectFeatures } from '../workers/filtration.ts';
+import type { SubjectFeatures } from '../workers/filtration.ts';
 import { distanceRowRanges } from '../workers/statistics.ts';
 import { StatisticsPool } from '../workers/statistics-pool.ts';
-import type { CachedFiltration } from './cache.ts';
 import type { RunHooks, StageContext, StageOutput } from './hooks.ts';
-
-/** The engine's result type from a cached filtration, node indices in the matrix as read. */
-export function resultFromCache(c: CachedFiltration, nRead: number): PersistenceResult {
-  const diagrams = c.diagrams.map((dg) => dg.map(([b, d]) => ({ birth: b, death: d ?? Infinity })));
-  return {
-    n: nRead,
-    threshold: c.threshold ?? Infinity,
-    thresholdSource: c.thresholdSource as PersistenceResult['thresholdSource'],
-    diagrams,
-    representatives: c.representatives
-      ? c.representatives.map((r, k) => ({
-          birth: diagrams[1][k].birth,
-          death: diagrams[1][k].death,
-          edges: r.edges,
-          nodes: r.nodes,
-        }))
-      : undefined,
-    mergeTree: (c.mergeTree ?? []).map(([value, i, j, survivor, absorbed]) => ({
-      value,
-      edge: [i, j] as [number, number],
-      survivor,
-      absorbed,
-    })),
-    counts: { edges: 0, columnsReduced: [], apparentPairs: [] },
-  };
-}
 
 const GROUP_SEED_OFFSET = 7919; // bootstrap bands use seed + offset, so they do not reuse the permutation stream
 
@@ -168,19 +141,25 @@ export function cohortStages(): RunHooks {
     async features(ctx) {
       const settings = ctx.run.settings;
       const nRead = ctx.report.n ?? 0;
-      // Pass 1: the cohort grid (the cohort's filtration range unless the user set one).
-      let lo = Infinity;
-      let hi = -Infinity;
-      for (const rec of ctx.analysed) {
-        const r = resultFromCache(await ctx.filtration(rec), nRead);
-        if (r.mergeTree.length > 0) lo = Math.min(lo, r.mergeTree[0].value);
-        hi = Math.max(hi, filtrationEnd(r));
+      // Pass 1: each subject's features as its worker computed them from the one read of its
+      // matrix (computed here, from one read, when it did not: after a merge, or from a source
+      // read on this thread), and the cohort grid (the cohort's filtration range unless the user set one).
+      const fset = featureTaskSettings(settings);
+      const perSubject: SubjectFeatures[] = [];
+      const range = new GridRange();
+      for (const [k, rec] of ctx.analysed.entries()) {
+        if (ctx.cancelled()) return {};
+        let f: SubjectFeatures | null = ctx.takeFeatures?.(rec) ?? null;
+        if (!f) {
+          ctx.progress('features', k, ctx.analysed.length, rec.id);
+          const entry = entryOf(ctx, rec.id);
+          const m = entry ? await ctx.matrix(entry) : null;
+          f = subjectFeatures(await ctx.filtration(rec), m, nRead, settings, fset);
+        }
+        perSubject.push(f);
+        range.add(f.summary.first, f.summary.end);
       }
-      if (!Number.isFinite(lo)) lo = 0;
-      if (!Number.isFinite(hi)) hi = lo;
-      gridValues = settings.gridRange
-        ? grid(settings.gridRange[0], settings.gridRange[1], settings.gridPoints)
-        : grid(lo, hi, settings.gridPoints);
+      gridValues = range.grid(settings);
 
       // Pass 2: one subject at a time. The long tables go to disk row by row; what the statistics
       // need (scalar features, node scores, curves) stays in memory as plain numbers.
@@ -223,16 +202,13 @@ export function cohortStages(): RunHooks {
           }
           ctx.progress('features', done, ctx.analysed.length, rec.id);
           const cached = await ctx.filtration(rec);
-          const r = resultFromCache(cached, nRead);
           diagramsBySubject.push(cached.diagrams);
-          const entry = entryOf(ctx, rec.id);
-          const distances = entry ? await subjectDistances(ctx, entry) : null;
-          featureRows.push({
-            subject: rec.id,
-            features: subjectFeatureRow(r, gridValues, settings, distances ?? undefined),
-          });
-          const kept = keptRegions(nRead, settings.dropRegions);
-          const scores = maskDropped(subjectNodeScores(r, settings), kept, nRead);
+          const f = perSubject[done];
+          const { features: row, curves } =
+            f.onGrid ?? subjectOnGrid(f.summary, resultFromCache(cached, nRead), gridValues, settings);
+          f.summary.euler = null; // the simplex events are done with
+          featureRows.push({ subject: rec.id, features: row });
+          const scores = f.summary.nodeScores;
           nodeScores.push({ subject: rec.id, scores });
           const cells = scanCells(ctx, rec.id);
           for (const scored of nodeScoreTable([{ subject: rec.id, scores }], ctx.report.nodes).rows) {
@@ -245,7 +221,6 @@ export function cohortStages(): RunHooks {
               await networksSink.row([...cells, ...row.slice(1)]);
             }
           }
-          const curves = subjectCurves(r, gridValues, settings, distances ?? undefined);
           curveRows.push({ subject: rec.id, curves });
           for (const [name, values] of Object.entries(curves)) {
             const dim = curveDimension(name);
@@ -546,18 +521,6 @@ function groupingColumn(ctx: StageContext): string | null {
   return term.find((c) => c !== blocks && categorical(c)) ?? null;
 }
 
-/** The subject's distances as the filtration saw them (regions dropped, transform applied), or null when unreadable. */
-async function subjectDistances(ctx: StageContext, entry: SubjectEntry): Promise<DistanceMatrix | null> {
-  const m = await ctx.matrix(entry);
-  if (!m) return null;
-  const s = ctx.run.settings;
-  try {
-    return toDistances(dropRegions(m, s.dropRegions).matrix, { input: s.input, transform: s.transform });
-  } catch {
-    return null;
-  }
-}
-
 /** Fisher-z (or plain) mean of a group's matrices, reading one subject at a time. */
 async function streamingGroupMean(
   ctx: StageContext,
@@ -592,11 +555,6 @@ async function streamingGroupMean(
   }
   for (let i = 0; i < n; i++) values[i * n + i] = fisher ? 1 : 0;
   return { n, values };
-}
-
-function keptRegions(n: number, drop: number[]): Int32Array {
-  const d = new Set(drop);
-  return Int32Array.from({ length: n }, (_, i) => i).filter((i) => !d.has(i));
 }
 
 /** Sets dropped regions' scores to NaN (written as NA). */

@@ -7,8 +7,14 @@
 import { computePersistence } from '../engine/persistence.ts';
 import { toDistances } from '../engine/transform.ts';
 import type { InputKind, TransformName } from '../engine/transform.ts';
-import type { CapSetting, SquareMatrix } from '../engine/types.ts';
-import type { SubjectEntry } from '../api.ts';
+import type { CapSetting, DistanceMatrix, SquareMatrix } from '../engine/types.ts';
+import type { AnalysisSettings, SubjectEntry } from '../api.ts';
+import { grid } from '../engine/features/grid.ts';
+import { subjectOnGrid, subjectSummary } from '../engine/features/rows.ts';
+import type { FeatureRow, SubjectSummary } from '../engine/features/rows.ts';
+import { CACHE_FORMAT, resultFromCache } from '../shared/filtration-record.ts';
+import type { CachedFiltration } from '../shared/filtration-record.ts';
+import { ENGINE_VERSION } from '../engine/version.ts';
 
 export interface FiltrationSettings {
   input: InputKind;
@@ -41,6 +47,36 @@ export interface SubjectTask {
   recompute: boolean;
   /** Also hash the file's bytes (a file of its own; a stack shared by many subjects is hashed once elsewhere). */
   hashFile: boolean;
+  /** Also compute the subject's features from the same read (subjectFeatures); the reply then carries them. */
+  features?: FeatureTaskSettings;
+}
+
+/** What a subject's features depend on beyond its filtration. */
+export type FeatureTaskSettings = Pick<
+  AnalysisSettings,
+  'maxDim' | 'persistenceFloor' | 'landscapeLevels' | 'dropRegions' | 'gridPoints' | 'gridRange'
+>;
+
+/** The feature settings of a run's settings. */
+export function featureTaskSettings(s: AnalysisSettings): FeatureTaskSettings {
+  return {
+    maxDim: s.maxDim,
+    persistenceFloor: s.persistenceFloor,
+    landscapeLevels: s.landscapeLevels,
+    dropRegions: s.dropRegions,
+    gridPoints: s.gridPoints,
+    gridRange: s.gridRange,
+  };
+}
+
+/**
+ * One subject's features as its worker computes them from the one read of its matrix: the
+ * grid-free summary (engine/features/rows.ts subjectSummary), and, when the grid is fixed by the
+ * settings (gridRange), the features and curves on it, the summary then without its simplex events.
+ */
+export interface SubjectFeatures {
+  summary: SubjectSummary;
+  onGrid: { features: FeatureRow; curves: Record<string, Float64Array> } | null;
 }
 
 export type WorkerTask = ({ kind: 'matrix' } & FiltrationTask) | ({ kind: 'subject' } & SubjectTask);
@@ -52,6 +88,7 @@ export type WorkerReply =
       matrixSha256: string | null;
       key: string | null;
       fileSha256?: string | null;
+      features?: SubjectFeatures;
     }
   | {
       kind: 'cached';
@@ -60,6 +97,7 @@ export type WorkerReply =
       key: string;
       n: number;
       fileSha256?: string | null;
+      features?: SubjectFeatures;
     };
 
 /** Diagrams and representatives as flat typed arrays (transferable). Node indices are those of the matrix as given. */
@@ -154,6 +192,86 @@ export function runFiltration(task: FiltrationTask): PackedFiltration {
     repEdges,
     mergeTree,
   };
+}
+
+/** The cached record of a worker's packed result. */
+export function unpack(p: PackedFiltration, key: string, matrixSha256: string): CachedFiltration {
+  const diagrams = p.births.map((b, d) =>
+    Array.from(b, (birth, k): [number, number | null] => {
+      const death = p.deaths[d][k];
+      return [birth, Number.isFinite(death) ? death : null];
+    }),
+  );
+  let representatives: CachedFiltration['representatives'] = null;
+  if (p.repNodeStart && p.repNodes && p.repEdgeStart && p.repEdges) {
+    representatives = [];
+    for (let k = 0; k + 1 < p.repNodeStart.length; k++) {
+      const nodes = Array.from(p.repNodes.subarray(p.repNodeStart[k], p.repNodeStart[k + 1]));
+      const edges: Array<[number, number]> = [];
+      for (let t = p.repEdgeStart[k]; t < p.repEdgeStart[k + 1]; t++)
+        edges.push([p.repEdges[2 * t], p.repEdges[2 * t + 1]]);
+      representatives.push({ nodes, edges });
+    }
+  }
+  const mergeTree: CachedFiltration['mergeTree'] = [];
+  for (let k = 0; k < p.mergeTree.length; k += 5) {
+    const t = p.mergeTree;
+    mergeTree.push([t[k], t[k + 1], t[k + 2], t[k + 3], t[k + 4]]);
+  }
+  return {
+    format: CACHE_FORMAT,
+    key,
+    engineVersion: ENGINE_VERSION,
+    matrixSha256,
+    n: p.n,
+    threshold: Number.isFinite(p.threshold) ? p.threshold : null,
+    thresholdSource: p.thresholdSource,
+    diagrams,
+    representatives,
+    mergeTree,
+  };
+}
+
+/**
+ * A subject's features (SubjectFeatures) from its cached filtration and its matrix as read: the
+ * distances the filtration saw (regions dropped, transform applied; none when they cannot be made,
+ * and then no Euler values), the summary, and the grid's values when the grid is fixed. The one
+ * function the worker and the service's features stage both call.
+ */
+export function subjectFeatures(
+  cached: CachedFiltration,
+  matrix: SquareMatrix | null,
+  nRead: number,
+  filtration: Pick<FiltrationSettings, 'input' | 'transform'>,
+  settings: FeatureTaskSettings,
+): SubjectFeatures {
+  const r = resultFromCache(cached, nRead);
+  let distances: DistanceMatrix | undefined;
+  if (matrix) {
+    try {
+      distances = toDistances(dropRegions(matrix, settings.dropRegions).matrix, {
+        input: filtration.input,
+        transform: filtration.transform,
+      });
+    } catch {
+      distances = undefined;
+    }
+  }
+  const summary = subjectSummary(r, settings, distances);
+  if (!settings.gridRange) return { summary, onGrid: null };
+  const g = grid(settings.gridRange[0], settings.gridRange[1], settings.gridPoints);
+  const onGrid = subjectOnGrid(summary, r, g, settings);
+  return { summary: { ...summary, euler: null }, onGrid };
+}
+
+/** The buffers of a features reply, for postMessage's transfer list. */
+export function featureTransferList(f: SubjectFeatures | undefined): ArrayBuffer[] {
+  if (!f) return [];
+  const out: ArrayBuffer[] = [];
+  const ev = f.summary.euler;
+  if (ev) for (const a of [ev.values, ev.triangles, ev.tetrahedra]) if (a) out.push(a.buffer as ArrayBuffer);
+  if (f.onGrid) for (const c of Object.values(f.onGrid.curves)) out.push(c.buffer as ArrayBuffer);
+  return out;
 }
 
 /** The buffers of a packed result, for postMessage's transfer list. */

@@ -103,6 +103,79 @@ export function visitSimplices(
 }
 
 /**
+ * The simplices of visitSimplices recorded once, so that Euler curves and areas can be evaluated
+ * later on a grid not known yet (the cohort's), without the distances: per edge in the order
+ * visitSimplices enters them, its value and the triangles (and tetrahedra) it completes.
+ * replaySimplices calls a visitor exactly as visitSimplices would have (same batches, same order),
+ * so every sum over them is the same to the bit. 12 bytes per edge (16 with tetrahedra).
+ */
+export interface SimplexEvents {
+  kind: 'simplex-events';
+  /** Vertices of the complex (the distance matrix's n). */
+  n: number;
+  topDim: 1 | 2 | 3;
+  /** Values were recorded up to this limit (inclusive). */
+  limit: number;
+  values: Float64Array;
+  triangles: Int32Array | null;
+  tetrahedra: Int32Array | null;
+}
+
+/**
+ * Records visitSimplices(d, topDim, limit) as SimplexEvents.
+ *
+ *   simplexEvents(square with sides 1 and diagonals 2, 2) → values [1, 1, 1, 1, 2, 2], triangles [0, 0, 0, 0, 2, 2]
+ */
+export function simplexEvents(d: DistanceMatrix, topDim: 1 | 2 | 3, limit = Infinity): SimplexEvents {
+  let m = 0;
+  for (let k = 0; k < d.values.length; k++) if (d.values[k] <= limit) m++;
+  const values = new Float64Array(m);
+  const triangles = topDim >= 2 ? new Int32Array(m) : null;
+  const tetrahedra = topDim >= 3 ? new Int32Array(m) : null;
+  let e = -1;
+  visitSimplices(d, topDim, limit, (k, value, count) => {
+    if (k === 1) values[++e] = value;
+    else if (k === 2) triangles![e] = count;
+    else tetrahedra![e] = count;
+  });
+  return { kind: 'simplex-events', n: d.n, topDim, limit, values, triangles, tetrahedra };
+}
+
+/** Calls visit as visitSimplices(d, topDim, limit, visit) would have, from recorded events (topDim ≤ the events', limit ≤ theirs). */
+export function replaySimplices(
+  ev: SimplexEvents,
+  topDim: 1 | 2 | 3,
+  limit: number,
+  visit: (k: number, value: number, count: number) => void,
+): void {
+  if (topDim > ev.topDim || limit > ev.limit)
+    throw new RangeError(
+      `simplex events hold dimensions ≤ ${ev.topDim} up to ${ev.limit}; asked ${topDim} up to ${limit}`,
+    );
+  const { values, triangles, tetrahedra } = ev;
+  for (let e = 0; e < values.length; e++) {
+    const w = values[e];
+    if (!(w <= limit)) break; // ascending: the rest lie beyond the limit too
+    visit(1, w, 1);
+    if (topDim >= 2 && triangles![e] > 0) visit(2, w, triangles![e]);
+    if (topDim >= 3 && tetrahedra![e] > 0) visit(3, w, tetrahedra![e]);
+  }
+}
+
+/** The simplices of a distance matrix, or of its recorded events: one source for the curves and areas below. */
+export type SimplexSource = DistanceMatrix | SimplexEvents;
+
+function visitSource(
+  src: SimplexSource,
+  topDim: 1 | 2 | 3,
+  limit: number,
+  visit: (k: number, value: number, count: number) => void,
+): void {
+  if ('kind' in src && src.kind === 'simplex-events') replaySimplices(src, topDim, limit, visit);
+  else visitSimplices(src as DistanceMatrix, topDim, limit, visit);
+}
+
+/**
  * counts[k][g] = number of k-simplices with diameter ≤ grid[g] (and ≤ cap), k = 0 … topDim (≤ 3).
  * Vertices enter at 0.
  *
@@ -110,7 +183,7 @@ export function visitSimplices(
  *   → [[4, 4], [4, 6], [0, 4], [0, 1]]
  */
 export function simplexCountCurves(
-  d: DistanceMatrix,
+  d: SimplexSource,
   gridValues: ArrayLike<number>,
   topDim: 1 | 2 | 3,
   cap = Infinity,
@@ -122,7 +195,7 @@ export function simplexCountCurves(
   for (let g = 0; g < G; g++) counts[0][g] = gridValues[g] >= 0 ? d.n : 0;
   const bins: Float64Array[] = [];
   for (let q = 0; q <= topDim; q++) bins.push(new Float64Array(G + 1));
-  visitSimplices(d, topDim, Math.min(cap, gridValues[G - 1]), (q, value, count) => {
+  visitSource(d, topDim, Math.min(cap, gridValues[G - 1]), (q, value, count) => {
     bins[q][lowerBound(gridValues, value)] += count;
   });
   for (let q = 1; q <= topDim; q++) {
@@ -141,16 +214,10 @@ export function simplexCountCurves(
  *
  *   eulerArea(square with sides 1 and diagonals 2, 0, 3, 2) → 4·3 − (4·2 + 2·1) + 4·1 = 6
  */
-export function eulerArea(
-  d: DistanceMatrix,
-  a: number,
-  b: number,
-  topDim: 1 | 2 | 3,
-  cap = Infinity,
-): number {
+export function eulerArea(d: SimplexSource, a: number, b: number, topDim: 1 | 2 | 3, cap = Infinity): number {
   if (!(b >= a)) return 0;
   let area = d.n * (b - Math.max(a, 0));
-  visitSimplices(d, topDim, Math.min(cap, b), (q, value, count) => {
+  visitSource(d, topDim, Math.min(cap, b), (q, value, count) => {
     area += (q % 2 === 0 ? 1 : -1) * count * (b - Math.max(a, value));
   });
   return area;
@@ -163,7 +230,7 @@ export function eulerArea(
  *   (at 1 a 4-cycle: 4 − 4 = 0 = β0 − β1; at 2 a hollow tetrahedron: 4 − 6 + 4 = 2 = 1 − 0 + 1)
  */
 export function eulerCurve(
-  d: DistanceMatrix,
+  d: SimplexSource,
   gridValues: ArrayLike<number>,
   topDim: 1 | 2 | 3,
   cap = Infinity,
