@@ -16,6 +16,7 @@
  * or a file that could not be written, makes it 'failed' (with the reason among the failures),
  * and the output folder stays unfinished so the same request resumes.
  */
+import { readFile } from 'node:fs/promises';
 import { join, resolve } from 'node:path';
 import { setInterval, clearInterval } from 'node:timers';
 import type {
@@ -107,6 +108,11 @@ interface RunState {
   run: RunRecords | null;
   provenance: Provenance | null;
   results: StageOutput;
+  /**
+   * Where the run's finished tables are, and their names: its output folder, or for a run without
+   * one (the app's) a folder of its own under the cache (CACHE/runs/). exportRun copies them.
+   */
+  tables: { dir: string; files: string[] } | null;
   /** Subjects' features computed by their workers in stage (1), taken by the features stage. */
   subjectFeatures: Map<string, SubjectFeatures>;
   /** Stages (2)–(4) that failed: the run keeps what came before (e.g. features without statistics). */
@@ -126,6 +132,7 @@ function newRunState(
     pool: null,
     provenance: null,
     results: {},
+    tables: null,
     subjectFeatures: new Map(),
     stageFailures: [],
     summary: null,
@@ -236,6 +243,18 @@ export class LoopwiseService implements LoopwiseApi {
       throw e;
     }
     const runId = `run-${this.nextRun++}`;
+    // A run without an output folder keeps its tables in one of its own under the cache, so that
+    // exporting it copies them instead of computing them again.
+    const own =
+      folder ??
+      (req.shard
+        ? null
+        : await openRunFolder(
+            join(cache.dir, 'runs', `${process.pid}-${runId}-${Date.now().toString(36)}`),
+            req,
+            format,
+            true,
+          ).catch(() => null));
     const state = newRunState({
       runId,
       request: { ...req, outDir },
@@ -243,7 +262,7 @@ export class LoopwiseService implements LoopwiseApi {
       report: source.report,
       cache,
       run: null,
-      folder,
+      folder: own,
     });
     this.runs.set(runId, state);
     state.done = this.execute(state, format);
@@ -398,7 +417,9 @@ export class LoopwiseService implements LoopwiseApi {
         unmatched: unmatchedParticipants(report),
       };
       for (const u of state.run.unmatched ?? []) excluded.push({ subject: u.id, reason: u.reason });
-      const files = await this.finish(state, state.folder, format);
+      const written = await this.finish(state, state.folder, format);
+      // A run without an output folder wrote only into its own (see `tables`).
+      const files = req.outDir ? written : [];
       failures.push(...state.stageFailures);
       if (state.cancelRequested) return await finishSummary('cancelled', files);
       return await finishSummary(state.stageFailures.length > 0 ? 'failed' : 'done', files);
@@ -469,8 +490,10 @@ export class LoopwiseService implements LoopwiseApi {
       };
       if (folder) await ctx.writeJson(tableNames(format).provenance, state.provenance);
     }
-    if (folder && !state.cancelRequested)
+    if (folder && !state.cancelRequested) {
       await folder.finish(state.stageFailures.length > 0 ? 'failed' : 'complete');
+      state.tables = { dir: folder.dir, files: folder.files() };
+    }
     return folder ? folder.files() : [];
   }
 
@@ -593,15 +616,18 @@ export class LoopwiseService implements LoopwiseApi {
           : `run ${runId} ${s.status === 'cancelled' ? 'was cancelled' : `failed (${s.stageFailures.map((f) => `${f.subject} ${f.reason}`).join('; ') || 'see its summary'})`}: nothing to export; fix the settings and run again`,
       );
     const dir = resolve(outDir);
+    const tables = s.tables;
+    if (!tables)
+      throw new RunStateError(
+        `run ${runId} kept no tables to export (no folder of its own could be made under ${s.cache.dir}); run it again with an output folder`,
+      );
     const format = s.request.tableFormat ?? 'tsv';
     const folder = await openRunFolder(dir, s.request, format, overwrite);
     try {
-      const files = await this.finish(s, folder, format);
-      if (s.stageFailures.length > 0)
-        throw new Error(
-          `the export to ${dir} is incomplete: ${s.stageFailures.map((f) => `${f.subject} ${f.reason}`).join('; ')}`,
-        );
-      return { files };
+      // The run's own files, byte for byte: nothing is computed again.
+      for (const name of tables.files) await folder.writeFile(name, await readFile(join(tables.dir, name)));
+      await folder.finish('complete');
+      return { files: folder.files() };
     } finally {
       await folder.release();
     }
