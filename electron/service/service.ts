@@ -51,7 +51,7 @@ import { SHARD_DIR, checkShard, readShards, shardLockName, shareOf, writeShardMa
 import type { ShardManifest } from './shards.ts';
 import { assembleCohortResults, assembleSubjectResult } from './results.ts';
 import { makeStageContext } from './stage-context.ts';
-import { cohortStages } from './stages.ts';
+import { GroupMeansGatherer, cohortStages } from './stages.ts';
 import { runFiltrationStage } from './pipeline.ts';
 import type { ServiceCounters } from './pipeline.ts';
 import { featureTaskSettings } from '../workers/filtration.ts';
@@ -115,6 +115,8 @@ interface RunState {
   tables: { dir: string; files: string[] } | null;
   /** Subjects' features computed by their workers in stage (1), taken by the features stage. */
   subjectFeatures: Map<string, SubjectFeatures>;
+  /** The group means gathered from the workers' reads in stage (1) (null when nothing is grouped). */
+  groupMeans: GroupMeansGatherer | null;
   /** Stages (2)–(4) that failed: the run keeps what came before (e.g. features without statistics). */
   stageFailures: Array<{ subject: string; reason: string }>;
   summary: RunSummary | null;
@@ -134,6 +136,7 @@ function newRunState(
     results: {},
     tables: null,
     subjectFeatures: new Map(),
+    groupMeans: null,
     stageFailures: [],
     summary: null,
     done: Promise.resolve(null as unknown as RunSummary),
@@ -352,6 +355,7 @@ export class LoopwiseService implements LoopwiseApi {
     try {
       const pool = this.poolOfSize(req.workers ?? this.options.workers ?? defaultPoolSize());
       state.pool = pool;
+      if (!req.shard) state.groupMeans = GroupMeansGatherer.for(report, req.stats, req.settings, share);
       progress('filtrations', 0, share.length);
       let records: Map<number, SubjectRecord>;
       try {
@@ -363,12 +367,27 @@ export class LoopwiseService implements LoopwiseApi {
           share,
           counters: this.counters,
           cancelled: () => state.cancelRequested,
-          ...(req.shard ? {} : { features: featureTaskSettings(req.settings) }),
+          ...(req.shard
+            ? {}
+            : { features: { ...featureTaskSettings(req.settings), keepMatrix: state.groupMeans !== null } }),
           onStart: (entry) => {
             current = entry.id;
             computeStart ??= performance.now();
           },
           onOutcome: ({ record, reused: r, computed: c, features }) => {
+            if (features?.matrix) {
+              const values = features.matrix;
+              delete features.matrix;
+              state.groupMeans?.offer(record.index, {
+                id: record.id,
+                matrix: { n: Math.round(Math.sqrt(values.length)), values },
+              });
+            } else {
+              state.groupMeans?.offer(
+                record.index,
+                record.status === 'analysed' ? { id: record.id, matrix: null } : null,
+              );
+            }
             if (features) state.subjectFeatures.set(record.id, features);
             done++;
             if (r) reused++;
@@ -463,6 +482,7 @@ export class LoopwiseService implements LoopwiseApi {
       emit: (e) => this.emit(e),
       cancelled: () => state.cancelRequested,
       subjectFeatures: state.subjectFeatures,
+      groupMeans: state.groupMeans,
       workers: this.pool?.size ?? this.options.workers ?? defaultPoolSize(),
     });
     for (const stage of ['groupFiltrations', 'features', 'statistics'] as const) {
@@ -477,6 +497,7 @@ export class LoopwiseService implements LoopwiseApi {
         state.stageFailures.push({ subject: `(${stage})`, reason: reasonOf(e) });
       }
     }
+    state.groupMeans = null; // used by the group stage; its sums are done with
     const grid = (state.results as { grid?: number[] }).grid;
     if (grid && state.provenance) {
       // The grid is known only once the features stage has seen the cohort: record it too.

@@ -8,6 +8,7 @@ import type { FiltrationCache } from './cache.ts';
 import type { CohortSource } from './cohort-source.ts';
 import type { StageContext } from './hooks.ts';
 import type { SubjectFeatures } from '../workers/filtration.ts';
+import type { GroupMeansGatherer } from './stages.ts';
 import type { OutputFolder } from './outdir.ts';
 import { tableLine } from './tables.ts';
 import type { RunRecords, TableFormat } from './tables.ts';
@@ -27,6 +28,8 @@ export interface StageContextParts {
   workers?: number;
   /** Subjects' features computed by their workers in stage (1) (taken once each by the features stage). */
   subjectFeatures?: Map<string, SubjectFeatures>;
+  /** Group means gathered in stage (1) (stages.ts GroupMeansGatherer). */
+  groupMeans?: GroupMeansGatherer | null;
 }
 
 export function makeStageContext(p: StageContextParts): StageContext {
@@ -43,6 +46,7 @@ export function makeStageContext(p: StageContextParts): StageContext {
       return e;
     },
     matrix: async (entry) => (p.source ? p.source.load(entry) : null),
+    groupMeans: p.groupMeans ?? null,
     takeFeatures: (record) => {
       const f = p.subjectFeatures?.get(record.id) ?? null;
       p.subjectFeatures?.delete(record.id);

@@ -20,6 +20,7 @@ import {
   curveBands,
   featureTable,
   GridRange,
+  GroupMeanAccumulator,
   networkScoreTable,
   nodeScoreTable,
   subjectNodeScores,
@@ -99,7 +100,10 @@ export function cohortStages(): RunHooks {
       for (const [g, entries] of [...groups].sort((a, b) => a[0].localeCompare(b[0]))) {
         if (ctx.cancelled()) break;
         ctx.progress('group-filtrations', done, groups.size, `group ${g}`);
-        const mean = await streamingGroupMean(ctx, entries, settings.input === 'correlation');
+        const gathered = ctx.groupMeans?.complete(g, entries.length);
+        const mean = gathered
+          ? gathered.mean()
+          : await streamingGroupMean(ctx, entries, settings.input === 'correlation');
         if (!mean) continue;
         const { matrix, kept } = dropRegions(mean, settings.dropRegions);
         const distances = toDistances(matrix, { input: settings.input, transform: settings.transform });
@@ -503,10 +507,14 @@ async function distanceMatrixOnPool(
  * column (group for group:session).
  */
 function groupingColumn(ctx: StageContext): string | null {
-  const { groupColumn, effect, model, test, blocks } = ctx.stats;
+  return groupingColumnOf(ctx.stats, ctx.report);
+}
+
+export function groupingColumnOf(stats: StatsSettings, report: CohortReport): string | null {
+  const { groupColumn, effect, model, test, blocks } = stats;
   if (groupColumn) return groupColumn;
   const categorical = (col: string) =>
-    ctx.report.subjects.some((s) => {
+    report.subjects.some((s) => {
       const v = s.covariates[col];
       return v !== null && v !== undefined && typeof v !== 'number';
     });
@@ -521,40 +529,91 @@ function groupingColumn(ctx: StageContext): string | null {
   return term.find((c) => c !== blocks && categorical(c)) ?? null;
 }
 
-/** Fisher-z (or plain) mean of a group's matrices, reading one subject at a time. */
+/**
+ * The group-mean matrices of the group filtrations, gathered while stage (1) runs from the
+ * matrices its workers read (so each file is read once): each analysed subject's matrix is added
+ * to its group's GroupMeanAccumulator in cohort order (a subject that finishes early waits in a
+ * buffer, bounded by the subjects in flight), so the sums are exactly those of reading the
+ * subjects in order afterwards. A group whose subjects did not all come is read by the stage.
+ */
+export class GroupMeansGatherer {
+  readonly means = new Map<string, GroupMeanAccumulator>();
+  private readonly column: string;
+  private readonly byId: Map<string, SubjectEntry>;
+  private readonly kind: 'correlation' | 'plain';
+  private readonly order: number[];
+  private pos = 0;
+  private readonly waiting = new Map<number, { id: string; matrix: SquareMatrix | null } | null>();
+  private broken = new Set<string>();
+
+  /** Null when the run groups no subjects (no grouping column). */
+  static for(
+    report: CohortReport,
+    stats: StatsSettings,
+    settings: { input: string },
+    share: number[],
+  ): GroupMeansGatherer | null {
+    const column = groupingColumnOf(stats, report);
+    return column ? new GroupMeansGatherer(report, column, settings.input, share) : null;
+  }
+
+  private constructor(report: CohortReport, column: string, input: string, share: number[]) {
+    this.column = column;
+    this.byId = new Map(report.subjects.map((x) => [x.id, x]));
+    this.kind = input === 'correlation' ? 'correlation' : 'plain';
+    this.order = share;
+  }
+
+  /** A subject's outcome in stage (1): analysed (id) with its matrix as read, or not analysed (null). */
+  offer(index: number, subject: { id: string; matrix: SquareMatrix | null } | null): void {
+    this.waiting.set(index, subject);
+    while (this.pos < this.order.length && this.waiting.has(this.order[this.pos])) {
+      const next = this.waiting.get(this.order[this.pos]);
+      this.waiting.delete(this.order[this.pos]);
+      this.pos++;
+      if (next) this.add(next.id, next.matrix);
+    }
+  }
+
+  /** The group's accumulated mean input, when every one of its `subjects` was added. */
+  complete(group: string, subjects: number): GroupMeanAccumulator | null {
+    const acc = this.means.get(group);
+    return acc && !this.broken.has(group) && acc.count === subjects ? acc : null;
+  }
+
+  private add(id: string, m: SquareMatrix | null): void {
+    const v = this.byId.get(id)?.covariates[this.column];
+    if (v === null || v === undefined) return;
+    const g = String(v);
+    if (!m) {
+      this.broken.add(g);
+      return;
+    }
+    let acc = this.means.get(g);
+    if (!acc) this.means.set(g, (acc = new GroupMeanAccumulator(this.kind)));
+    if (acc.size >= 0 && m.n !== acc.size) return;
+    try {
+      acc.add(m);
+    } catch {
+      this.broken.add(g);
+    }
+  }
+}
+
+/** Fisher-z (or plain) mean of a group's matrices (GroupMeanAccumulator), reading one subject at a time. */
 async function streamingGroupMean(
   ctx: StageContext,
   entries: SubjectEntry[],
   fisher: boolean,
 ): Promise<SquareMatrix | null> {
-  let sum: Float64Array | null = null;
-  let count: Float64Array | null = null;
-  let n = 0;
-  const CLAMP = 1 - 1e-12;
+  const acc = new GroupMeanAccumulator(fisher ? 'correlation' : 'plain');
   for (const e of entries) {
     const m = await ctx.matrix(e);
     if (!m) continue;
-    if (!sum) {
-      n = m.n;
-      sum = new Float64Array(n * n);
-      count = new Float64Array(n * n);
-    }
-    if (m.n !== n) continue;
-    for (let k = 0; k < n * n; k++) {
-      const v = m.values[k];
-      if (!Number.isFinite(v)) continue;
-      sum[k] += fisher ? Math.atanh(Math.max(-CLAMP, Math.min(CLAMP, v))) : v;
-      count![k]++;
-    }
+    if (acc.size >= 0 && m.n !== acc.size) continue;
+    acc.add(m);
   }
-  if (!sum || !count) return null;
-  const values = new Float64Array(n * n);
-  for (let k = 0; k < n * n; k++) {
-    const mean = count[k] > 0 ? sum[k] / count[k] : NaN;
-    values[k] = fisher ? Math.tanh(mean) : mean;
-  }
-  for (let i = 0; i < n; i++) values[i * n + i] = fisher ? 1 : 0;
-  return { n, values };
+  return acc.count > 0 ? acc.mean() : null;
 }
 
 /** Sets dropped regions' scores to NaN (written as NA). */

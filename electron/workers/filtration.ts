@@ -55,7 +55,10 @@ export interface SubjectTask {
 export type FeatureTaskSettings = Pick<
   AnalysisSettings,
   'maxDim' | 'persistenceFloor' | 'landscapeLevels' | 'dropRegions' | 'gridPoints' | 'gridRange'
->;
+> & {
+  /** Also send the matrix as read back (for the group means the run gathers as subjects finish). */
+  keepMatrix?: boolean;
+};
 
 /** The feature settings of a run's settings. */
 export function featureTaskSettings(s: AnalysisSettings): FeatureTaskSettings {
@@ -77,6 +80,8 @@ export function featureTaskSettings(s: AnalysisSettings): FeatureTaskSettings {
 export interface SubjectFeatures {
   summary: SubjectSummary;
   onGrid: { features: FeatureRow; curves: Record<string, Float64Array> } | null;
+  /** The matrix as read (row-major n × n), when the task asked for it (keepMatrix). */
+  matrix?: Float64Array;
 }
 
 export type WorkerTask = ({ kind: 'matrix' } & FiltrationTask) | ({ kind: 'subject' } & SubjectTask);
@@ -258,10 +263,11 @@ export function subjectFeatures(
     }
   }
   const summary = subjectSummary(r, settings, distances);
-  if (!settings.gridRange) return { summary, onGrid: null };
+  const kept = settings.keepMatrix && matrix ? { matrix: matrix.values.slice() } : {};
+  if (!settings.gridRange) return { summary, onGrid: null, ...kept };
   const g = grid(settings.gridRange[0], settings.gridRange[1], settings.gridPoints);
   const onGrid = subjectOnGrid(summary, r, g, settings);
-  return { summary: { ...summary, euler: null }, onGrid };
+  return { summary: { ...summary, euler: null }, onGrid, ...kept };
 }
 
 /** The buffers of a features reply, for postMessage's transfer list. */
@@ -271,6 +277,7 @@ export function featureTransferList(f: SubjectFeatures | undefined): ArrayBuffer
   const ev = f.summary.euler;
   if (ev) for (const a of [ev.values, ev.triangles, ev.tetrahedra]) if (a) out.push(a.buffer as ArrayBuffer);
   if (f.onGrid) for (const c of Object.values(f.onGrid.curves)) out.push(c.buffer as ArrayBuffer);
+  if (f.matrix) out.push(f.matrix.buffer as ArrayBuffer);
   return out;
 }
 

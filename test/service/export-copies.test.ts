@@ -22,7 +22,7 @@ const request = (outDir?: string) => ({
   cohort: { dir: cohort },
   settings: defaultAnalysisSettings(),
   stats: { ...defaultStatsSettings(), groupColumn: 'group', permutations: 99 },
-  ...(outDir ? { outDir } : {}),
+  outDir: outDir ?? null,
   workers: 2,
 });
 
