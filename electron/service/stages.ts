@@ -21,13 +21,13 @@ import {
   featureTable,
   GridRange,
   GroupMeanAccumulator,
+  maskDroppedRegions,
   networkScoreTable,
   nodeScoreTable,
   subjectNodeScores,
   subjectOnGrid,
 } from '../engine/features/index.ts';
 import type { FeatureRow } from '../engine/features/index.ts';
-import { computePersistence } from '../engine/persistence.ts';
 import { buildDesign } from '../engine/stats/design.ts';
 import { parseTerm } from '../engine/stats/formula.ts';
 import type { Design, DesignSpec, DesignSubject } from '../engine/stats/design.ts';
@@ -40,10 +40,9 @@ import type { FamilyFeature, FamilyResult, FeatureFamily } from '../engine/stats
 import { finishPermutationTest, preparePermutationTest } from '../engine/stats/permutation.ts';
 import { diagramTestsTable, statsTable } from '../engine/stats/tables.ts';
 import type { DiagramTestEntry } from '../engine/stats/tables.ts';
-import { toDistances } from '../engine/transform.ts';
-import type { PersistenceResult, SquareMatrix } from '../engine/types.ts';
+import type { SquareMatrix } from '../engine/types.ts';
 import { resultFromCache } from '../shared/filtration-record.ts';
-import { dropRegions, featureTaskSettings, subjectFeatures } from '../workers/filtration.ts';
+import { featureTaskSettings, filtrationAsRead, subjectFeatures } from '../workers/filtration.ts';
 import type { SubjectFeatures } from '../workers/filtration.ts';
 import { distanceRowRanges } from '../workers/statistics.ts';
 import { StatisticsPool } from '../workers/statistics-pool.ts';
@@ -105,14 +104,7 @@ export function cohortStages(): RunHooks {
           ? gathered.mean()
           : await streamingGroupMean(ctx, entries, settings.input === 'correlation');
         if (!mean) continue;
-        const { matrix, kept } = dropRegions(mean, settings.dropRegions);
-        const distances = toDistances(matrix, { input: settings.input, transform: settings.transform });
-        const r = computePersistence(distances, {
-          maxDim: settings.maxDim,
-          cap: settings.cap,
-          representatives: settings.representatives,
-        });
-        const mapped = mapToRead(r, kept, mean.n);
+        const { result: mapped } = filtrationAsRead(mean, settings);
         groupDiagrams.push({
           group: g,
           diagrams: mapped.diagrams.map((dg) =>
@@ -132,7 +124,10 @@ export function cohortStages(): RunHooks {
             ]),
           ),
         );
-        nodeRows.push({ subject: g, scores: maskDropped(subjectNodeScores(mapped, settings), kept, mean.n) });
+        nodeRows.push({
+          subject: g,
+          scores: maskDroppedRegions(subjectNodeScores(mapped, settings), settings.dropRegions),
+        });
         done++;
       }
       await ctx.writeTable('group-intervals', intervals);
@@ -614,38 +609,6 @@ async function streamingGroupMean(
     acc.add(m);
   }
   return acc.count > 0 ? acc.mean() : null;
-}
-
-/** Sets dropped regions' scores to NaN (written as NA). */
-function maskDropped(
-  scores: Record<string, number[]>,
-  kept: Int32Array,
-  n: number,
-): Record<string, number[]> {
-  if (kept.length === n) return scores;
-  const keep = new Uint8Array(n);
-  kept.forEach((i) => (keep[i] = 1));
-  for (const v of Object.values(scores)) for (let i = 0; i < v.length; i++) if (!keep[i]) v[i] = NaN;
-  return scores;
-}
-
-/** A result on the kept regions, re-indexed to the matrix as read. */
-function mapToRead(r: PersistenceResult, kept: Int32Array, nRead: number): PersistenceResult {
-  return {
-    ...r,
-    n: nRead,
-    representatives: r.representatives?.map((rep) => ({
-      ...rep,
-      edges: rep.edges.map(([i, j]) => [kept[i], kept[j]] as [number, number]),
-      nodes: rep.nodes.map((v) => kept[v]),
-    })),
-    mergeTree: r.mergeTree.map((ev) => ({
-      ...ev,
-      edge: [kept[ev.edge[0]], kept[ev.edge[1]]] as [number, number],
-      survivor: kept[ev.survivor],
-      absorbed: kept[ev.absorbed],
-    })),
-  };
 }
 
 function curveDimension(name: string): number | null {

@@ -5,9 +5,9 @@
  * No node:* imports, so the same code runs in-process where threads are unavailable.
  */
 import { computePersistence } from '../engine/persistence.ts';
-import { toDistances } from '../engine/transform.ts';
+import { dropRegions, toDistances } from '../engine/transform.ts';
 import type { InputKind, TransformName } from '../engine/transform.ts';
-import type { CapSetting, DistanceMatrix, SquareMatrix } from '../engine/types.ts';
+import type { CapSetting, DistanceMatrix, PersistenceResult, SquareMatrix } from '../engine/types.ts';
 import type { AnalysisSettings, SubjectEntry } from '../api.ts';
 import { grid } from '../engine/features/grid.ts';
 import { subjectOnGrid, subjectSummary } from '../engine/features/rows.ts';
@@ -128,29 +128,45 @@ export interface FiltrationFailure {
   error: string;
 }
 
-/** The matrix without the rows and columns in `drop`, and the original index of each kept region. */
-export function dropRegions(m: SquareMatrix, drop: number[]): { matrix: SquareMatrix; kept: Int32Array } {
-  const dropSet = new Set(drop.filter((r) => r < m.n));
-  const keptList: number[] = [];
-  for (let i = 0; i < m.n; i++) if (!dropSet.has(i)) keptList.push(i);
-  const kept = Int32Array.from(keptList);
-  if (kept.length === m.n) return { matrix: m, kept };
-  const k = kept.length;
-  const values = new Float64Array(k * k);
-  for (let a = 0; a < k; a++)
-    for (let b = 0; b < k; b++) values[a * k + b] = m.values[kept[a] * m.n + kept[b]];
-  return { matrix: { n: k, values }, kept };
-}
+export { dropRegions };
 
-export function runFiltration(task: FiltrationTask): PackedFiltration {
-  const { settings } = task;
-  const { matrix, kept } = dropRegions({ n: task.n, values: task.values }, settings.dropRegions);
+/**
+ * The one filtration of a matrix, for a subject (runFiltration) and a group's mean matrix (the
+ * group stage) alike: drop regions → distances (transform.ts) → persistence (persistence.ts) →
+ * node indices mapped back to the matrix as read (so dropped regions do not shift node names).
+ * `analysed` is the number of regions kept.
+ */
+export function filtrationAsRead(
+  m: SquareMatrix,
+  settings: FiltrationSettings,
+): { result: PersistenceResult; analysed: number } {
+  const { matrix, kept } = dropRegions(m, settings.dropRegions);
   const distances = toDistances(matrix, { input: settings.input, transform: settings.transform });
   const r = computePersistence(distances, {
     maxDim: settings.maxDim,
     cap: settings.cap,
     representatives: settings.representatives,
   });
+  const result: PersistenceResult = {
+    ...r,
+    n: m.n,
+    representatives: r.representatives?.map((rep) => ({
+      ...rep,
+      edges: rep.edges.map(([i, j]) => [kept[i], kept[j]] as [number, number]),
+      nodes: rep.nodes.map((v) => kept[v]),
+    })),
+    mergeTree: r.mergeTree.map((ev) => ({
+      ...ev,
+      edge: [kept[ev.edge[0]], kept[ev.edge[1]]] as [number, number],
+      survivor: kept[ev.survivor],
+      absorbed: kept[ev.absorbed],
+    })),
+  };
+  return { result, analysed: matrix.n };
+}
+
+export function runFiltration(task: FiltrationTask): PackedFiltration {
+  const { result: r, analysed } = filtrationAsRead({ n: task.n, values: task.values }, task.settings);
   const births = r.diagrams.map((d) => Float64Array.from(d, (iv) => iv.birth));
   const deaths = r.diagrams.map((d) => Float64Array.from(d, (iv) => iv.death));
   let repNodeStart: Int32Array | null = null;
@@ -167,26 +183,22 @@ export function runFiltration(task: FiltrationTask): PackedFiltration {
     });
     const nodes = new Int32Array(nodeStart[reps.length]);
     const edges = new Int32Array(2 * edgeStart[reps.length]);
-    // Back to the indices of the matrix as read, so dropped regions do not shift node names.
     reps.forEach((rep, k) => {
-      rep.nodes.forEach((v, t) => (nodes[nodeStart[k] + t] = kept[v]));
+      rep.nodes.forEach((v, t) => (nodes[nodeStart[k] + t] = v));
       rep.edges.forEach(([i, j], t) => {
-        edges[2 * (edgeStart[k] + t)] = kept[i];
-        edges[2 * (edgeStart[k] + t) + 1] = kept[j];
+        edges[2 * (edgeStart[k] + t)] = i;
+        edges[2 * (edgeStart[k] + t) + 1] = j;
       });
     });
     [repNodeStart, repNodes, repEdgeStart, repEdges] = [nodeStart, nodes, edgeStart, edges];
   }
   const mergeTree = new Float64Array(5 * r.mergeTree.length);
   r.mergeTree.forEach((ev, k) => {
-    mergeTree.set(
-      [ev.value, kept[ev.edge[0]], kept[ev.edge[1]], kept[ev.survivor], kept[ev.absorbed]],
-      5 * k,
-    );
+    mergeTree.set([ev.value, ev.edge[0], ev.edge[1], ev.survivor, ev.absorbed], 5 * k);
   });
   return {
     taskId: task.taskId,
-    n: matrix.n,
+    n: analysed,
     threshold: r.threshold,
     thresholdSource: r.thresholdSource,
     births,

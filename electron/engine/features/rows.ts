@@ -131,7 +131,7 @@ export function subjectSummary(
     first: result.mergeTree.length > 0 ? result.mergeTree[0].value : null,
     end: filtrationEnd(result),
     features,
-    nodeScores: maskDropped(subjectNodeScores(result, settings), settings.dropRegions),
+    nodeScores: maskDroppedRegions(subjectNodeScores(result, settings), settings.dropRegions),
     euler: distances ? simplexEvents(distances, (settings.maxDim + 1) as 2 | 3, userCap(result)) : null,
   };
 }
@@ -152,7 +152,10 @@ export function subjectOnGrid(
 }
 
 /** Sets the scores of dropped regions to NaN (written as NA). */
-function maskDropped(scores: Record<string, number[]>, drop: number[]): Record<string, number[]> {
+export function maskDroppedRegions(
+  scores: Record<string, number[]>,
+  drop: number[],
+): Record<string, number[]> {
   if (drop.length === 0) return scores;
   const gone = new Set(drop);
   for (const v of Object.values(scores)) for (let i = 0; i < v.length; i++) if (gone.has(i)) v[i] = NaN;
