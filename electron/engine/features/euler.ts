@@ -17,6 +17,7 @@
  * among those common neighbours. Bitset rows make each a popcount of ANDed words. Every simplex is
  * counted once, at the value of its longest edge, which is its diameter.
  */
+import { sortByValue } from '../radix.ts';
 import type { DistanceMatrix } from '../types.ts';
 
 function popcount(x: number): number {
@@ -48,23 +49,32 @@ export function visitSimplices(
   visit: (k: number, value: number, count: number) => void,
 ): void {
   const { n, values } = d;
-  // Edges that can enter before the limit, ascending by length.
-  const ei: number[] = [];
-  const ej: number[] = [];
-  const ew: number[] = [];
+  // Edges that can enter before the limit, ascending by length (ties in index order: stable).
+  let m = 0;
+  let negative = false;
+  for (let k = 0; k < values.length; k++) {
+    if (values[k] <= limit) m++;
+    if (values[k] < 0) negative = true;
+  }
+  const ei = new Int32Array(m);
+  const ej = new Int32Array(m);
+  const ew = new Float64Array(m);
   let k = 0;
+  let e = 0;
   for (let i = 0; i < n; i++) {
     for (let j = 0; j < i; j++, k++) {
       const w = values[k];
       if (w <= limit) {
-        ei.push(i);
-        ej.push(j);
-        ew.push(w);
+        ei[e] = i;
+        ej[e] = j;
+        ew[e++] = w;
       }
     }
   }
-  const order = Array.from(ew.keys()).sort((a, b) => ew[a] - ew[b]);
-
+  const order = new Uint32Array(m);
+  for (let q = 0; q < m; q++) order[q] = q;
+  if (negative) order.sort((a, b) => ew[a] - ew[b] || a - b);
+  else sortByValue(order, ew); // stable radix sort (radix.ts): the same order as a stable comparison sort
   const words = (n + 31) >>> 5;
   const adj = new Int32Array(n * words);
   const common = new Int32Array(words);
