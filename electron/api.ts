@@ -220,9 +220,37 @@ export interface CurveBand {
   upper: number[];
 }
 
+/** A group's mean-matrix filtration (Fisher-z mean of its scans' correlations), as group-intervals.tsv and group-nodes.tsv hold it. */
+export interface GroupFiltration {
+  group: string;
+  /** Scans averaged into the mean matrix. */
+  scans: number;
+  /** Regions of the mean matrix as read. */
+  nodeCount: number;
+  /** The filtration value the complex was built up to. */
+  threshold: number | null;
+  diagrams: DiagramJson[];
+  /** H1 cycle representatives, aligned with diagrams[1] (empty without representatives). */
+  representatives: CycleJson[];
+  /** Node measure name → one value per region (null: dropped region). */
+  nodeScores: Record<string, number[]>;
+}
+
+/** An H1 cycle: its interval, its regions (0-based, file order) and its edges [i, j]. */
+export interface CycleJson {
+  birth: number;
+  death: number | null;
+  nodes: number[];
+  edges: Array<[number, number]>;
+}
+
 export interface CohortResults {
   runId: string;
   provenance: Provenance;
+  /** The diagram distance of the whole-diagram tests and of every comparison, e.g. 'wasserstein-2'. */
+  diagramMetric?: string;
+  /** Each group's mean-matrix filtration (empty without a grouping column). */
+  groupFiltrations?: GroupFiltration[];
   /** The cohort grid of the curves. */
   grid?: number[];
   /** One row per subject, one column per scalar feature (plus id, group, covariates). */
@@ -260,6 +288,67 @@ export interface SubjectResult {
   }>;
   /** Node measure name → one value per node. */
   nodeScores: Record<string, number[]>;
+}
+
+// ---------- Comparisons ----------
+
+/** One side of a comparison: a scan of the run, or a group's mean-matrix filtration. */
+export type ComparisonSide = { kind: 'scan'; id: string } | { kind: 'group'; group: string };
+
+/** One side's filtration as a comparison shows it. */
+export interface FiltrationSide {
+  side: ComparisonSide;
+  /** The scan id, or "GROUP: mean of K scans". */
+  label: string;
+  /** The scan's group (grouping column), or the group itself; null without a grouping column. */
+  group: string | null;
+  diagrams: DiagramJson[];
+  representatives: CycleJson[];
+  /** Node measure name → one value per region (null/NaN: dropped region). */
+  nodeScores: Record<string, number[]>;
+  /** Curve name ('betti0', 'betti1', 'euler') → values on the run's grid; euler only where the distances are at hand. */
+  curves: Record<string, number[]>;
+}
+
+/** Where a scan lies among a group's scans for one scalar feature (a position in this cohort, not a clinical norm). */
+export interface FeaturePosition {
+  feature: string;
+  value: number;
+  groupMean: number;
+  groupScans: number;
+  /** Percentile rank within the group's scans, ties counted half (0–100). */
+  percentile: number | null;
+}
+
+/** One region's node measure on both sides, ranked by |b − a| within the measure (rank 1 = largest). */
+export interface NodeDifferenceRow {
+  measure: string;
+  rank: number;
+  /** 0-based region index in file order. */
+  node: number;
+  /** The node table's label, else "region i+1". */
+  label: string;
+  network: string | null;
+  a: number | null;
+  b: number | null;
+  difference: number | null;
+}
+
+export interface Comparison {
+  runId: string;
+  a: FiltrationSide;
+  b: FiltrationSide;
+  /** The run's curve grid. */
+  grid: number[];
+  /** The diagram distance used (the whole-diagram tests' own), e.g. 'wasserstein-2', 'sliced-wasserstein-50'. */
+  metric: string;
+  /** Distance between the two sides' diagrams per dimension (essential classes dropped). */
+  distances: Array<{ dimension: number; distance: number }>;
+  /** For each H1 cycle of a: the cycle of b sharing most regions (Jaccard overlap; 1 = same regions). */
+  cycleMatches: Array<{ a: number; b: number | null; overlap: number }>;
+  nodeDifferences: NodeDifferenceRow[];
+  /** With a scan on one side and a group on the other: the scan's position in that group, per scalar feature. */
+  positions: FeaturePosition[] | null;
 }
 
 export interface OpenCohortRequest {
@@ -311,6 +400,8 @@ export interface LoopwiseApi {
   runSummary(runId: string): Promise<RunSummary | null>;
   cohortResults(runId: string): Promise<CohortResults | null>;
   subjectResult(runId: string, subjectId: string): Promise<SubjectResult | null>;
+  /** Two filtrations of a finished run side by side: scans or groups' mean matrices. */
+  compare(runId: string, a: ComparisonSide, b: ComparisonSide): Promise<Comparison>;
   /** Writes the tables of a finished run to outDir; refuses to overwrite existing files unless overwrite. */
   exportRun(runId: string, outDir: string, overwrite: boolean): Promise<{ files: string[] }>;
 }

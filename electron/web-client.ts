@@ -7,6 +7,8 @@ import type {
   AnalysisSettings,
   CohortReport,
   CohortResults,
+  Comparison,
+  ComparisonSide,
   LoopwiseApi,
   OpenCohortRequest,
   ProgressEvent,
@@ -53,6 +55,7 @@ export const API_METHODS = [
   'runSummary',
   'cohortResults',
   'subjectResult',
+  'compare',
   'exportRun',
 ] as const;
 export type ApiMethod = (typeof API_METHODS)[number];
@@ -222,12 +225,27 @@ export function checkCall(method: ApiMethod, args: unknown[]): CheckedCall {
     case 'subjectResult':
       arity(args, 2, method);
       return { args: [id(args[0], 'runId'), id(args[1], 'subjectId')], paths: [] };
+    case 'compare':
+      arity(args, 3, method);
+      return {
+        args: [id(args[0], 'runId'), comparisonSide(args[1], 'a'), comparisonSide(args[2], 'b')],
+        paths: [],
+      };
     case 'exportRun': {
       arity(args, 3, method);
       const outDir = str(args[1], 'outDir');
       return { args: [id(args[0], 'runId'), outDir, bool(args[2], 'overwrite')], paths: [outDir] };
     }
   }
+}
+
+/** A comparison side rebuilt from scratch: {kind: 'scan', id} or {kind: 'group', group}. */
+function comparisonSide(v: unknown, what: string): ComparisonSide {
+  if (!isObj(v))
+    throw new BadRequest(`${what} must be {"kind": "scan", "id": …} or {"kind": "group", "group": …}`);
+  if (v.kind === 'scan') return { kind: 'scan', id: str(v.id, `${what}.id`, 256) };
+  if (v.kind === 'group') return { kind: 'group', group: str(v.group, `${what}.group`, 256) };
+  throw new BadRequest(`${what}.kind must be "scan" or "group"`);
 }
 
 function cohortPaths(req: OpenCohortRequest): string[] {
@@ -307,6 +325,7 @@ export function createHttpClient(opts: HttpClientOptions): LoopwiseDoor {
     runSummary: (runId) => call<RunSummary | null>('runSummary', [runId]),
     cohortResults: (runId) => call<CohortResults | null>('cohortResults', [runId]),
     subjectResult: (runId, subjectId) => call<SubjectResult | null>('subjectResult', [runId, subjectId]),
+    compare: (runId, a, b) => call<Comparison>('compare', [runId, a, b]),
     exportRun: (runId, outDir, overwrite) =>
       call<{ files: string[] }>('exportRun', [runId, outDir, overwrite]),
     onProgress(listener) {

@@ -232,13 +232,15 @@ export async function startWebServer(api: LoopwiseApi, options: WebServerOptions
       const kind = e instanceof Error ? e.name : '';
       const code = (e as { code?: string }).code;
       const status =
-        kind === 'OutDirError' || kind === 'RunStateError'
-          ? 409
-          : kind === 'WriteError'
-            ? code === 'ENOSPC' || code === 'EDQUOT'
-              ? 507
-              : 403
-            : 500;
+        kind === 'ComparisonError'
+          ? 400
+          : kind === 'OutDirError' || kind === 'RunStateError'
+            ? 409
+            : kind === 'WriteError'
+              ? code === 'ENOSPC' || code === 'EDQUOT'
+                ? 507
+                : 403
+              : 500;
       return send(res, status, { error: e instanceof Error ? e.message : String(e) });
     }
   }

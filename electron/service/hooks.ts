@@ -22,7 +22,7 @@ import type {
   SubjectEntry,
   Table,
 } from '../api.ts';
-import type { SquareMatrix } from '../engine/types.ts';
+import type { DistanceMatrix, SquareMatrix } from '../engine/types.ts';
 import type { CachedFiltration } from './cache.ts';
 import type { SubjectFeatures } from '../workers/filtration.ts';
 import type { GroupMeansGatherer } from './stages.ts';
@@ -78,7 +78,10 @@ export interface TableSink {
   abort(): Promise<void>;
 }
 
-export type StageOutput = Partial<Omit<CohortResults, 'runId' | 'provenance'>>;
+export type StageOutput = Partial<Omit<CohortResults, 'runId' | 'provenance'>> & {
+  /** Each group's mean-matrix distances (for its Euler curve in comparisons); held by the run, never sent. */
+  groupDistances?: Map<string, DistanceMatrix>;
+};
 
 export interface RunHooks {
   groupFiltrations?(ctx: StageContext): Promise<StageOutput>;

@@ -49,11 +49,14 @@ export async function assembleCohortResults(s: RunView): Promise<CohortResults |
   return {
     runId: s.runId,
     provenance: s.provenance,
+    ...(r.grid ? { grid: r.grid } : {}),
     features: r.features ?? (await countsTable(s)),
     nodeScores:
       r.nodeScores ?? emptyTable(['participant_id', 'node', 'label', 'network', 'measure', 'value']),
     groupCurves: r.groupCurves ?? [],
     groupDiagrams: r.groupDiagrams ?? [],
+    groupFiltrations: r.groupFiltrations ?? [],
+    ...(r.diagramMetric ? { diagramMetric: r.diagramMetric } : {}),
     stats: r.stats ?? null,
     diagramTests: r.diagramTests ?? null,
     embedding: r.embedding ?? null,

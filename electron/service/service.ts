@@ -23,6 +23,8 @@ import type {
   AnalysisSettings,
   CohortReport,
   CohortResults,
+  Comparison,
+  ComparisonSide,
   LoopwiseApi,
   OpenCohortRequest,
   ProgressEvent,
@@ -50,6 +52,7 @@ import { openRunFolder } from './run-folder.ts';
 import { SHARD_DIR, checkShard, readShards, shardLockName, shareOf, writeShardManifest } from './shards.ts';
 import type { ShardManifest } from './shards.ts';
 import { assembleCohortResults, assembleSubjectResult } from './results.ts';
+import { ComparisonError, compareSides } from './compare.ts';
 import { makeStageContext } from './stage-context.ts';
 import { GroupMeansGatherer, cohortStages } from './stages.ts';
 import { runFiltrationStage } from './pipeline.ts';
@@ -625,6 +628,12 @@ export class LoopwiseService implements LoopwiseApi {
   async subjectResult(runId: string, subjectId: string): Promise<SubjectResult | null> {
     const s = this.runs.get(runId);
     return s ? assembleSubjectResult(s, subjectId) : null;
+  }
+
+  async compare(runId: string, a: ComparisonSide, b: ComparisonSide): Promise<Comparison> {
+    const s = this.runs.get(runId);
+    if (!s) throw new ComparisonError(`no run ${runId} in this session`);
+    return compareSides(s, a, b);
   }
 
   async exportRun(runId: string, outDir: string, overwrite: boolean): Promise<{ files: string[] }> {

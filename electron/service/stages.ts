@@ -15,7 +15,15 @@
  * Where the cohort has sessions, every per-scan table has a `session` column right after
  * participant_id (which then holds the participant, shared by its scans).
  */
-import type { CohortReport, CurveBand, NodeInfo, StatsSettings, SubjectEntry, Table } from '../api.ts';
+import type {
+  CohortReport,
+  CurveBand,
+  GroupFiltration,
+  NodeInfo,
+  StatsSettings,
+  SubjectEntry,
+  Table,
+} from '../api.ts';
 import {
   curveBands,
   featureTable,
@@ -28,6 +36,7 @@ import {
   subjectOnGrid,
 } from '../engine/features/index.ts';
 import type { FeatureRow } from '../engine/features/index.ts';
+import { wholeDiagramMetric } from '../engine/stats/compare.ts';
 import { buildDesign } from '../engine/stats/design.ts';
 import { parseTerm } from '../engine/stats/formula.ts';
 import type { Design, DesignSpec, DesignSubject } from '../engine/stats/design.ts';
@@ -40,7 +49,7 @@ import type { FamilyFeature, FamilyResult, FeatureFamily } from '../engine/stats
 import { finishPermutationTest, preparePermutationTest } from '../engine/stats/permutation.ts';
 import { diagramTestsTable, statsTable } from '../engine/stats/tables.ts';
 import type { DiagramTestEntry } from '../engine/stats/tables.ts';
-import type { SquareMatrix } from '../engine/types.ts';
+import type { DistanceMatrix, SquareMatrix } from '../engine/types.ts';
 import { resultFromCache } from '../shared/filtration-record.ts';
 import { featureTaskSettings, filtrationAsRead, subjectFeatures } from '../workers/filtration.ts';
 import type { SubjectFeatures } from '../workers/filtration.ts';
@@ -66,7 +75,7 @@ export function cohortStages(): RunHooks {
     return entries.get(id);
   };
   const groupOf = (ctx: StageContext, id: string): string | null => {
-    const col = groupingColumn(ctx);
+    const col = groupingColumn(ctx.report, ctx.stats);
     if (!col) return null;
     const v = entryOf(ctx, id)?.covariates[col];
     return v === null || v === undefined ? null : String(v);
@@ -81,7 +90,7 @@ export function cohortStages(): RunHooks {
 
   return {
     async groupFiltrations(ctx) {
-      const col = groupingColumn(ctx);
+      const col = groupingColumn(ctx.report, ctx.stats);
       if (!col) return {};
       const settings = ctx.run.settings;
       const groups = new Map<string, SubjectEntry[]>();
@@ -95,6 +104,8 @@ export function cohortStages(): RunHooks {
       const intervals: Table = { columns: ['group', 'dimension', 'birth', 'death', 'nodes'], rows: [] };
       const nodeRows: Array<{ subject: string; scores: Record<string, number[]> }> = [];
       const groupDiagrams: StageOutput['groupDiagrams'] = [];
+      const groupFiltrations: GroupFiltration[] = [];
+      const groupDistances = new Map<string, DistanceMatrix>();
       let done = 0;
       for (const [g, entries] of [...groups].sort((a, b) => a[0].localeCompare(b[0]))) {
         if (ctx.cancelled()) break;
@@ -104,15 +115,27 @@ export function cohortStages(): RunHooks {
           ? gathered.mean()
           : await streamingGroupMean(ctx, entries, settings.input === 'correlation');
         if (!mean) continue;
-        const { result: mapped } = filtrationAsRead(mean, settings);
-        groupDiagrams.push({
+        const { result: mapped, distances } = filtrationAsRead(mean, settings);
+        const diagrams = mapped.diagrams.map((dg) =>
+          dg.map((iv) => [iv.birth, Number.isFinite(iv.death) ? iv.death : null] as [number, number | null]),
+        );
+        groupDiagrams.push({ group: g, diagrams });
+        const scores = maskDroppedRegions(subjectNodeScores(mapped, settings), settings.dropRegions);
+        groupFiltrations.push({
           group: g,
-          diagrams: mapped.diagrams.map((dg) =>
-            dg.map(
-              (iv) => [iv.birth, Number.isFinite(iv.death) ? iv.death : null] as [number, number | null],
-            ),
-          ),
+          scans: entries.length,
+          nodeCount: mean.n,
+          threshold: Number.isFinite(mapped.threshold) ? mapped.threshold : null,
+          diagrams,
+          representatives: (mapped.representatives ?? []).map((rep) => ({
+            birth: rep.birth,
+            death: Number.isFinite(rep.death) ? rep.death : null,
+            nodes: rep.nodes,
+            edges: rep.edges,
+          })),
+          nodeScores: scores,
         });
+        groupDistances.set(g, distances);
         mapped.diagrams.forEach((dg, d) =>
           dg.forEach((iv, k) =>
             intervals.rows.push([
@@ -124,17 +147,14 @@ export function cohortStages(): RunHooks {
             ]),
           ),
         );
-        nodeRows.push({
-          subject: g,
-          scores: maskDroppedRegions(subjectNodeScores(mapped, settings), settings.dropRegions),
-        });
+        nodeRows.push({ subject: g, scores });
         done++;
       }
       await ctx.writeTable('group-intervals', intervals);
       const gn = nodeScoreTable(nodeRows, ctx.report.nodes);
       gn.columns[0] = 'group';
       await ctx.writeTable('group-nodes', gn);
-      return { groupDiagrams };
+      return { groupDiagrams, groupFiltrations, groupDistances };
     },
 
     async features(ctx) {
@@ -307,8 +327,7 @@ export function cohortStages(): RunHooks {
       const dimensions = diagramsBySubject[0]?.length ?? 0;
       const position = new Map(subjects.map((s, i) => [s, i]));
       const idx = design.ids.map((id) => position.get(id)!);
-      const metric: DiagramMetric =
-        idx.length <= 60 ? { kind: 'wasserstein', p: 2 } : { kind: 'sliced-wasserstein' };
+      const metric: DiagramMetric = wholeDiagramMetric(idx.length);
 
       // Permutation chunks and distance-matrix rows run on worker threads (as many as the run's
       // workers); each result depends on its task alone, so the tables are the same for any count.
@@ -444,7 +463,7 @@ export function cohortStages(): RunHooks {
           });
         }
         if (warnings.length > 0) await ctx.writeJson('stats-warnings.json', warnings);
-        return { stats, diagramTests, embedding };
+        return { stats, diagramTests, embedding, diagramMetric: metricName(metric) };
       } catch (e) {
         // A cancel terminates the pool: the tasks in flight reject, and the stage stops quietly.
         if (ctx.cancelled()) return {};
@@ -501,11 +520,7 @@ async function distanceMatrixOnPool(
  * text, or the first column holding text of a --model's --test term other than the --blocks
  * column (group for group:session).
  */
-function groupingColumn(ctx: StageContext): string | null {
-  return groupingColumnOf(ctx.stats, ctx.report);
-}
-
-export function groupingColumnOf(stats: StatsSettings, report: CohortReport): string | null {
+export function groupingColumn(report: CohortReport, stats: StatsSettings): string | null {
   const { groupColumn, effect, model, test, blocks } = stats;
   if (groupColumn) return groupColumn;
   const categorical = (col: string) =>
@@ -548,7 +563,7 @@ export class GroupMeansGatherer {
     settings: { input: string },
     share: number[],
   ): GroupMeansGatherer | null {
-    const column = groupingColumnOf(stats, report);
+    const column = groupingColumn(report, stats);
     return column ? new GroupMeansGatherer(report, column, settings.input, share) : null;
   }
 

@@ -134,12 +134,12 @@ export { dropRegions };
  * The one filtration of a matrix, for a subject (runFiltration) and a group's mean matrix (the
  * group stage) alike: drop regions → distances (transform.ts) → persistence (persistence.ts) →
  * node indices mapped back to the matrix as read (so dropped regions do not shift node names).
- * `analysed` is the number of regions kept.
+ * `analysed` is the number of regions kept; `distances` those the filtration ran on (kept regions only).
  */
 export function filtrationAsRead(
   m: SquareMatrix,
   settings: FiltrationSettings,
-): { result: PersistenceResult; analysed: number } {
+): { result: PersistenceResult; analysed: number; distances: DistanceMatrix } {
   const { matrix, kept } = dropRegions(m, settings.dropRegions);
   const distances = toDistances(matrix, { input: settings.input, transform: settings.transform });
   const r = computePersistence(distances, {
@@ -162,7 +162,7 @@ export function filtrationAsRead(
       absorbed: kept[ev.absorbed],
     })),
   };
-  return { result, analysed: matrix.n };
+  return { result, analysed: matrix.n, distances };
 }
 
 export function runFiltration(task: FiltrationTask): PackedFiltration {

@@ -7,6 +7,7 @@ import { join } from 'node:path';
 import { crc32 } from 'node:zlib';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
+import { diagramDistance, finiteDiagram } from '../../electron/engine/stats/diagram-distance.ts';
 import { hasChromium, launch, type Browser } from './support/browser.ts';
 import { artefacts, messyCohort, sampleCohort, startApp, type RunningApp } from './support/app.ts';
 
@@ -280,6 +281,86 @@ describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
     const itxt = chunks.find(([t]) => t === 'iTXt');
     expect(itxt?.[1].toString('utf8')).toMatch(/^loopwise:provenance\0\0\0\0\0\{"tool":"loopwise"/);
     expect(chunks.at(-1)?.[0]).toBe('IEND');
+  });
+
+  it('compares two subjects picked on the subject map, a subject against its group mean, and shows each group’s mean-matrix filtration', async () => {
+    const exported = join(app.outDir, 'first-export');
+    const rowsOf = (file: string) => {
+      const [head, ...rows] = readFileSync(join(exported, file), 'utf8')
+        .trimEnd()
+        .split('\n')
+        .map((l) => l.split('\t'));
+      return rows.map((r) => Object.fromEntries(head.map((h, i) => [h, r[i]])));
+    };
+    const num = (v: string) => (v === 'inf' ? null : Number(v));
+    await tab('Compare');
+    await drawn('subject-map-mds');
+    // Two clicks on the subject map fill A, then B, and compare them.
+    const points = plot('subject-map-mds').locator('.scatterlayer .trace .point');
+    for (const k of [0, 5]) {
+      const box = await points.nth(k).boundingBox();
+      expect(box).not.toBeNull();
+      await page.mouse.click(box!.x + box!.width / 2, box!.y + box!.height / 2);
+    }
+    const distance = page.getByTestId('compare-distance');
+    await distance.waitFor({ timeout: 30_000 });
+    await drawn('compare-diagrams');
+    await drawn('compare-barcodes');
+    const [a, b] = [
+      (await page.locator('select[name=compare-a]').inputValue()).replace(/^scan:/, ''),
+      (await page.locator('select[name=compare-b]').inputValue()).replace(/^scan:/, ''),
+    ];
+    expect(a).not.toBe(b);
+    // The distance shown is the engine's own W2 (48 scans ≤ 60: the whole-diagram tests' exact
+    // W2) on the two scans' diagrams as intervals.tsv holds them; the engine's distance is
+    // checked against GUDHI and scipy in test/engine/stats.
+    expect(await distance.textContent()).toMatch(/2-Wasserstein distance/);
+    const intervals = rowsOf('intervals.tsv');
+    const diagramOf = (scan: string, dim: number) =>
+      intervals
+        .filter((r) => `${r.participant_id}_ses-${r.session}` === scan && r.dimension === String(dim))
+        .map((r) => [Number(r.birth), num(r.death)] as [number, number | null]);
+    for (const dim of [0, 1]) {
+      const shown = Number(await distance.locator(`[data-dimension="${dim}"]`).getAttribute('data-value'));
+      const want = diagramDistance(finiteDiagram(diagramOf(a, dim)), finiteDiagram(diagramOf(b, dim)), {
+        kind: 'wasserstein',
+        p: 2,
+      });
+      expect(shown).toBeCloseTo(want, 9);
+    }
+    await expect.poll(() => page.getByTestId('compare-link').textContent()).toMatch(/cycle|regions/);
+    await shot('7-compare');
+
+    // A against its own group's mean matrix: B becomes the group, and A's percentile ranks appear.
+    await page.getByRole('button', { name: 'A against its group mean' }).click();
+    await expect.poll(() => distance.textContent()).toMatch(/mean of \d+ scans/);
+    await page.getByTestId('compare-positions').locator('tbody tr').first().waitFor();
+    expect(await page.getByText('not a clinical norm').count()).toBeGreaterThan(0);
+    await shot('8-compare-group');
+
+    // Groups: each group's mean-matrix diagram is group-intervals.tsv.
+    await tab('Groups');
+    const groupRows = rowsOf('group-intervals.tsv');
+    for (const g of sample.groups) {
+      await drawn(`group-diagram-${g}`);
+      const drawnPoints = await plot(`group-diagram-${g}`)
+        .locator('.canvas')
+        .evaluate((el) =>
+          (el as unknown as { data: Array<{ name?: string; x: number[]; y: number[] }> }).data
+            .filter((t) => t.name === 'H1')
+            .flatMap((t) => t.x.map((x, i) => [x, t.y[i]])),
+        );
+      const want = groupRows
+        .filter((r) => r.group === g && r.dimension === '1')
+        .map((r) => [Number(r.birth), Number(r.death)]);
+      expect(drawnPoints).toHaveLength(want.length);
+      drawnPoints.forEach(([x, y], i) => {
+        expect(x).toBeCloseTo(want[i][0], 12);
+        expect(y).toBeCloseTo(want[i][1], 12);
+      });
+    }
+    await page.getByTestId('group-distances').waitFor();
+    await shot('9-group-filtrations');
   });
 
   it('shows a malformed cohort’s findings and still runs its good subjects', async () => {

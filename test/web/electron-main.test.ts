@@ -71,6 +71,9 @@ describe('Electron IPC', () => {
     await expect(call('openCohort', 'not an array')).rejects.toThrow(/malformed/);
     await expect(call('openCohort', [{ dir: 42 }])).rejects.toThrow(/cohort.dir/);
     await expect(call('exportRun', ['run-1', out, 'yes'])).rejects.toThrow(/overwrite/);
+    await expect(
+      call('compare', ['run-1', { kind: 'scan', id: 'sub-01' }, { kind: 'group' }]),
+    ).rejects.toThrow(/b\.group/);
   });
 
   it('rejects the values the contract refuses (here seed −1), naming the field and the option', async () => {
@@ -79,6 +82,25 @@ describe('Electron IPC', () => {
     await expect(call('startRun', [req])).rejects.toThrow(/stats\.seed \(--seed\): must be an integer/);
     const calls = api.calls.filter((c) => c.method === 'startRun').length;
     expect(calls).toBe(0);
+  });
+
+  it('passes a comparison through to the service', async () => {
+    const { settings, stats } = (await call('defaultSettings', [])) as { settings: never; stats: never };
+    const { runId } = (await call('startRun', [
+      { cohort: { dir: sample }, settings, stats, outDir: null },
+    ])) as {
+      runId: string;
+    };
+    const c = (await call('compare', [
+      runId,
+      { kind: 'scan', id: 'sub-01' },
+      { kind: 'scan', id: 'sub-03' },
+    ])) as {
+      distances: unknown[];
+      a: { label: string };
+    };
+    expect(c.a.label).toBe('sub-01');
+    expect(c.distances).toHaveLength(2);
   });
 
   it('touches only the sample cohort, the default output folder and folders picked in the native dialog', async () => {

@@ -7,7 +7,9 @@ import type {
   AnalysisSettings,
   CohortReport,
   CohortResults,
+  ComparisonSide,
   CurveBand,
+  FiltrationSide,
   LoopwiseApi,
   ProgressEvent,
   RunSummary,
@@ -18,6 +20,13 @@ import type {
 import { defaultStatsSettings } from '../../electron/contract.ts';
 import { computePersistence } from '../../electron/engine/persistence.ts';
 import { createRng } from '../../electron/engine/random.ts';
+import {
+  diagramDistances,
+  matchCycles,
+  rankedNodeDifferences,
+  wholeDiagramMetric,
+} from '../../electron/engine/stats/compare.ts';
+import { metricName } from '../../electron/engine/stats/diagram-distance.ts';
 import { toDistances } from '../../electron/engine/transform.ts';
 
 const N = 16;
@@ -315,6 +324,54 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
     async subjectResult(runId, subjectId) {
       calls.push({ method: 'subjectResult', args: [runId, subjectId] });
       return runs.has(runId) ? subject(subjectId) : null;
+    },
+    async compare(runId, a, b) {
+      calls.push({ method: 'compare', args: [runId, a, b] });
+      // Scans only (the stand-in keeps no group filtrations), through the engine's own comparison functions.
+      const side = (x: ComparisonSide): FiltrationSide => {
+        const r = x.kind === 'scan' ? subject(x.id) : null;
+        if (!runs.has(runId) || !r) {
+          const e = new Error(`no ${x.kind} ${x.kind === 'scan' ? x.id : x.group} in run ${runId}`);
+          e.name = 'ComparisonError';
+          throw e;
+        }
+        return {
+          side: x,
+          label: r.id,
+          group: r.group,
+          diagrams: r.diagrams,
+          representatives: r.representatives,
+          nodeScores: r.nodeScores,
+          curves: {},
+        };
+      };
+      const [left, right] = [side(a), side(b)];
+      const metric = wholeDiagramMetric(9);
+      return {
+        runId,
+        a: left,
+        b: right,
+        grid: [],
+        metric: metricName(metric),
+        distances: diagramDistances(left.diagrams, right.diagrams, metric).map((distance, dimension) => ({
+          dimension,
+          distance,
+        })),
+        cycleMatches: matchCycles(left.representatives, right.representatives),
+        nodeDifferences: Object.keys(left.nodeScores).flatMap((measure) =>
+          rankedNodeDifferences(left.nodeScores[measure], right.nodeScores[measure]).map((d, k) => ({
+            measure,
+            rank: k + 1,
+            node: d.node,
+            label: `R${d.node + 1}`,
+            network: NETWORKS[d.node % 4],
+            a: d.a,
+            b: d.b,
+            difference: d.difference,
+          })),
+        ),
+        positions: null,
+      };
     },
     async exportRun(runId, outDir, overwrite) {
       calls.push({ method: 'exportRun', args: [runId, outDir, overwrite] });

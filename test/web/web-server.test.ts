@@ -138,6 +138,40 @@ describe('browser-mode server', () => {
     expect((await post('noSuchThing', [])).status).toBe(404);
   });
 
+  it('answers a comparison of two scans, 400 for a side of the wrong shape or one the run lacks', async () => {
+    const { runId } = await api.startRun({
+      cohort: { dir: cohort },
+      ...(await api.defaultSettings()),
+      outDir: null,
+    });
+    const res = await post('compare', [
+      runId,
+      { kind: 'scan', id: 'sub-01' },
+      { kind: 'scan', id: 'sub-02' },
+    ]);
+    expect(res.status).toBe(200);
+    const c = await res.json();
+    expect(c.metric).toBe('wasserstein-2');
+    expect(c.distances.map((d: { dimension: number }) => d.dimension)).toEqual([0, 1]);
+    expect(api.calls.at(-1)).toEqual({
+      method: 'compare',
+      args: [runId, { kind: 'scan', id: 'sub-01' }, { kind: 'scan', id: 'sub-02' }],
+    });
+    const bad = await post('compare', [runId, { kind: 'scan' }, { kind: 'group', group: 'control' }]);
+    expect(bad.status).toBe(400);
+    expect((await bad.json()).error).toMatch(/a\.id/);
+    expect(
+      (await post('compare', [runId, { kind: 'region', id: 'x' }, { kind: 'scan', id: 'sub-01' }])).status,
+    ).toBe(400);
+    const missing = await post('compare', [
+      runId,
+      { kind: 'scan', id: 'sub-77' },
+      { kind: 'scan', id: 'sub-01' },
+    ]);
+    expect(missing.status).toBe(400);
+    expect((await missing.json()).error).toMatch(/no scan sub-77/);
+  });
+
   it('rejects a request addressed to another host name (DNS rebinding)', async () => {
     const status = await new Promise<number>((ok, fail) => {
       const req = request(

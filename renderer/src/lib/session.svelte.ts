@@ -14,7 +14,7 @@ import type { DoorInfo, LoopwiseDoor } from '../../../electron/web-client.ts';
 import { mergeFailures } from './progress.ts';
 import { proposedDesign } from './study.ts';
 
-export type ViewName = 'study' | 'analysis' | 'groups' | 'regions' | 'subject' | 'export';
+export type ViewName = 'study' | 'analysis' | 'groups' | 'regions' | 'subject' | 'compare' | 'export';
 
 export class Session {
   readonly door: LoopwiseDoor;
@@ -40,6 +40,10 @@ export class Session {
   seen = $state<Array<{ subject: string; cached: boolean }>>([]);
   summary = $state<RunSummary | null>(null);
   results = $state<CohortResults | null>(null);
+
+  /** The Compare view's two sides, as 'scan:ID' or 'group:LEVEL' (kept across views). */
+  compareA = $state('');
+  compareB = $state('');
 
   subjectId = $state<string | null>(null);
   subject = $state<SubjectResult | null>(null);
@@ -93,6 +97,8 @@ export class Session {
       this.progress = null;
       this.subject = null;
       this.subjectId = null;
+      this.compareA = '';
+      this.compareB = '';
       // The design in use where it fits this cohort, else one that does (sessions: group × session, blocks).
       if (this.stats) this.stats = proposedDesign(report, $state.snapshot(this.stats) as StatsSettings);
     });
