@@ -3,6 +3,7 @@
  * and the renderer. Plain JSON-able data only. Change it deliberately: the CLI's JSON output
  * and the browser API are public interfaces.
  */
+import type { DIAGRAM_TEST_COLUMNS, STATS_COLUMNS } from './engine/features/columns.ts';
 import type { InputKind, TransformName } from './engine/transform.ts';
 import type { CapSetting } from './engine/types.ts';
 
@@ -220,6 +221,70 @@ export interface CurveBand {
   upper: number[];
 }
 
+/** A cell of a result table: a number, a text, or missing (written as NA in files). */
+export type Cell = string | number | null;
+
+/**
+ * One row of stats.tsv, keyed by the file's own column names (`STATS_COLUMNS` in
+ * engine/features/columns.ts; the compiler checks the two agree). The app names them for people
+ * (p_fwer: "corrected p (FWER)") but reads them only under these names.
+ */
+export interface StatsRow {
+  /** `features`, `nodes:MEASURE` or `curve:NAME`. */
+  family: string;
+  feature: string;
+  /** The node's label (its 0-based index when the cohort has no node table) or the curve's grid value; null for a scalar feature. */
+  node_or_point: string | number | null;
+  contrast: string;
+  test: string;
+  statistic: number | null;
+  df_num: number | null;
+  df: number | null;
+  p_parametric: number | null;
+  p_uncorrected: number | null;
+  p_fwer: number | null;
+  q_fdr: number | null;
+  /** adjusted_d, d_z, partial_r or partial_eta_squared. */
+  effect_kind: string;
+  effect_size: number | null;
+  effect_low: number | null;
+  effect_high: number | null;
+  partial_r: number | null;
+  partial_eta_squared: number | null;
+  n_per_group: string;
+  n_blocks: number | null;
+  scheme: string;
+  permutation_mode: string;
+  permutations: number | null;
+  seed: number | null;
+}
+
+/** One row of diagram-tests.tsv, keyed by its column names (`DIAGRAM_TEST_COLUMNS`). */
+export interface DiagramTestRow {
+  family: string;
+  metric: string;
+  test: string;
+  statistic: number | null;
+  df_num: number | null;
+  df: number | null;
+  p: number | null;
+  n_per_group: string;
+  permutation_mode: string;
+  permutations: number | null;
+  seed: number | null;
+  warning: string | null;
+  scheme: string;
+  effect: string | null;
+}
+
+type Same<A, B> = [A] extends [B] ? ([B] extends [A] ? true : false) : false;
+type Holds<T extends true> = T;
+/** Compile-time checks: the typed rows have exactly the files' columns. */
+export type RowsMatchColumns = [
+  Holds<Same<keyof StatsRow, (typeof STATS_COLUMNS)[number]>>,
+  Holds<Same<keyof DiagramTestRow, (typeof DIAGRAM_TEST_COLUMNS)[number]>>,
+];
+
 /** A group's mean-matrix filtration (Fisher-z mean of its scans' correlations), as group-intervals.tsv and group-nodes.tsv hold it. */
 export interface GroupFiltration {
   group: string;
@@ -253,16 +318,28 @@ export interface CohortResults {
   groupFiltrations?: GroupFiltration[];
   /** The cohort grid of the curves. */
   grid?: number[];
-  /** One row per subject, one column per scalar feature (plus id, group, covariates). */
+  /** One row per scan: participant_id (and session), the participants table's columns, then every scalar feature. */
   features: Table;
-  /** Long form: subject, node, label, network, measure, value. */
-  nodeScores: Table;
+  /**
+   * The scalar feature columns of `features`, in order (everything after the scan and participants
+   * columns): whatever feature families the run wrote, so new families flow through unchanged.
+   */
+  featureNames: string[];
+  /** The node measures of the run (nodes.tsv's `measure` values), in output order; [] when none. */
+  nodeMeasures: string[];
+  /** The column the design splits scans by (group curves, Regions' values per group), or null. */
+  groupColumn: string | null;
   groupCurves: CurveBand[];
   groupDiagrams: Array<{ group: string; diagrams: DiagramJson[] }>;
-  /** Rows of stats.tsv, when statistics were run. */
-  stats: Table | null;
+  /**
+   * The tests of the scalar features (stats.tsv rows of family `features`), when statistics were run.
+   * The node and curve families are reached through `regionEffects` and `tablePage`.
+   */
+  featureTests: StatsRow[] | null;
+  /** stats.tsv's families and their row counts, when statistics were run. */
+  statsFamilies: Array<{ family: string; rows: number }> | null;
   /** Rows of diagram-tests.tsv, when statistics were run. */
-  diagramTests: Table | null;
+  diagramTests: DiagramTestRow[] | null;
   /** A 2-D map of subjects from diagram distances. */
   embedding: Array<{
     subject: string;
@@ -286,8 +363,114 @@ export interface SubjectResult {
     edges: Array<[number, number]>;
     nodes: number[];
   }>;
-  /** Node measure name → one value per node. */
-  nodeScores: Record<string, number[]>;
+  /** Node measure name → one value per region (0-based index; null where undefined), as in nodes.tsv. */
+  nodeScores: Record<string, Array<number | null>>;
+}
+
+/**
+ * One region's result for a node measure: the stats.tsv row of the tested model (when the run
+ * tested it) under stats.tsv's column names, plus the region's identity and its mean.
+ */
+export interface RegionEffect extends Pick<
+  StatsRow,
+  'statistic' | 'p_uncorrected' | 'p_fwer' | 'q_fdr' | 'effect_size' | 'effect_low' | 'effect_high'
+> {
+  /** 0-based index in file order (nodes.tsv's `node`). */
+  node: number;
+  /** 1-based number shown in the app (node + 1). */
+  number: number;
+  /** The node table's label, else `region NUMBER`. */
+  label: string;
+  network: string | null;
+  /** Mean of the measure over the analysed scans (descriptive), null when undefined. */
+  mean: number | null;
+  /** The run tested this region (it has a stats.tsv row). */
+  tested: boolean;
+  /** p_fwer < alpha. */
+  significant: boolean;
+}
+
+export interface NetworkEffect {
+  network: string;
+  regions: number;
+  tested: number;
+  /** Mean and largest |effect_size| of the tested regions. */
+  mean_effect: number | null;
+  max_abs_effect: number | null;
+  significant: number;
+}
+
+/** Every region's effect for one node measure, ranked. */
+export interface RegionEffects {
+  runId: string;
+  measure: string;
+  /** stats.tsv's family of the measure (`nodes:MEASURE`). */
+  family: string;
+  /** The tested contrast or term and its test, null when the run tested no region for it. */
+  contrast: string | null;
+  test: string | null;
+  /** The effect size's kind (stats.tsv's `effect_kind`), null when untested. */
+  effect_kind: string | null;
+  /** The significance level the `significant` flags use (on p_fwer). */
+  alpha: number;
+  /**
+   * Every region, ranked: tested regions by |effect_size| (largest first), then the others by
+   * |mean|; ties by index.
+   */
+  regions: RegionEffect[];
+  tested: number;
+  significant: number;
+  /** Per network of the node table (null without networks). */
+  networks: NetworkEffect[] | null;
+}
+
+/** One region's values per scan for a node measure, for the click on a region. */
+export interface RegionValues {
+  runId: string;
+  measure: string;
+  node: number;
+  number: number;
+  label: string;
+  network: string | null;
+  /** The column `group` holds (the design's grouping column), or null. */
+  groupColumn: string | null;
+  /** Session labels in natural order, or null in a cohort without sessions. */
+  sessions: string[] | null;
+  values: Array<{
+    /** The scan's key (SubjectEntry.id). */
+    subject: string;
+    participant: string;
+    session: string | null;
+    group: string | null;
+    value: number | null;
+  }>;
+}
+
+/** The result tables a page can be asked of (the files of the same names). */
+export const RESULT_TABLES = ['features', 'stats', 'diagram-tests', 'nodes'] as const;
+export type ResultTableName = (typeof RESULT_TABLES)[number];
+
+export interface TablePageRequest {
+  table: ResultTableName;
+  /** First row (0-based) of the page, after filtering and sorting. */
+  offset: number;
+  /** Rows per page, 1 … 5000. */
+  limit: number;
+  /** Sort by a column (numbers numerically, texts naturally; missing values last). Default: file order. */
+  sort?: { column: string; descending: boolean } | null;
+  /** Keep rows with a cell containing this text (case-insensitive). */
+  filter?: string | null;
+  /** Keep rows whose cell in each named column equals the value (e.g. { family: 'features' }). */
+  equals?: Record<string, string | number> | null;
+}
+
+export interface TablePage extends Table {
+  table: ResultTableName;
+  offset: number;
+  /** Rows matching the filter (the page holds at most `limit` of them). */
+  total: number;
+  /** Rows of the whole table. */
+  all: number;
 }
 
 // ---------- Comparisons ----------
@@ -400,6 +583,12 @@ export interface LoopwiseApi {
   runSummary(runId: string): Promise<RunSummary | null>;
   cohortResults(runId: string): Promise<CohortResults | null>;
   subjectResult(runId: string, subjectId: string): Promise<SubjectResult | null>;
+  /** Every region's effect for a node measure, ranked (null: no such run or measure, or not finished). */
+  regionEffects(runId: string, measure: string): Promise<RegionEffects | null>;
+  /** One region's values per scan, with group and session (node: 0-based index). */
+  regionValues(runId: string, measure: string, node: number): Promise<RegionValues | null>;
+  /** A page of a result table, filtered and sorted by the service. */
+  tablePage(runId: string, req: TablePageRequest): Promise<TablePage | null>;
   /** Two filtrations of a finished run side by side: scans or groups' mean matrices. */
   compare(runId: string, a: ComparisonSide, b: ComparisonSide): Promise<Comparison>;
   /** Writes the tables of a finished run to outDir; refuses to overwrite existing files unless overwrite. */

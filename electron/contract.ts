@@ -608,6 +608,30 @@ export function scanId(participant: string, session: string | null): string {
   return session === null ? participant : `${participant}_ses-${session}`;
 }
 
+/**
+ * The column a design splits scans by (group curves, group filtrations, values per group): the
+ * group column, a categorical effect, or with a model the first categorical column of the tested
+ * term that is not the blocks column (group for group:session). Null when there is none.
+ *
+ *   designGroupColumn({ model: 'group*session', test: 'group:session', … }, (c) => c !== 'age') → 'group'
+ */
+export function designGroupColumn(
+  st: Pick<StatsSettings, 'groupColumn' | 'effect' | 'model' | 'test' | 'blocks'> | null,
+  categorical: (column: string) => boolean,
+): string | null {
+  if (!st) return null;
+  if (st.groupColumn) return st.groupColumn;
+  if (st.effect) return categorical(st.effect) ? st.effect : null;
+  if (!st.model || !st.test) return null;
+  let term: string[];
+  try {
+    term = parseTerm(st.test);
+  } catch {
+    return null;
+  }
+  return term.find((c) => c !== st.blocks && categorical(c)) ?? null;
+}
+
 // ---------- Defaults ----------
 
 export function defaultAnalysisSettings(): AnalysisSettings {

@@ -12,11 +12,16 @@ import type {
   LoopwiseApi,
   OpenCohortRequest,
   ProgressEvent,
+  RegionEffects,
+  RegionValues,
   RunSummary,
   StartRunRequest,
   StatsSettings,
   SubjectResult,
+  TablePage,
+  TablePageRequest,
 } from './api.ts';
+import { RESULT_TABLES } from './api.ts';
 import {
   TABLE_FORMATS,
   problemText,
@@ -55,6 +60,9 @@ export const API_METHODS = [
   'runSummary',
   'cohortResults',
   'subjectResult',
+  'regionEffects',
+  'regionValues',
+  'tablePage',
   'compare',
   'exportRun',
 ] as const;
@@ -225,6 +233,18 @@ export function checkCall(method: ApiMethod, args: unknown[]): CheckedCall {
     case 'subjectResult':
       arity(args, 2, method);
       return { args: [id(args[0], 'runId'), id(args[1], 'subjectId')], paths: [] };
+    case 'regionEffects':
+      arity(args, 2, method);
+      return { args: [id(args[0], 'runId'), str(args[1], 'measure', 256)], paths: [] };
+    case 'regionValues':
+      arity(args, 3, method);
+      return {
+        args: [id(args[0], 'runId'), str(args[1], 'measure', 256), int(args[2], 'node', 0, 1e7)],
+        paths: [],
+      };
+    case 'tablePage':
+      arity(args, 2, method);
+      return { args: [id(args[0], 'runId'), checkTablePage(args[1])], paths: [] };
     case 'compare':
       arity(args, 3, method);
       return {
@@ -237,6 +257,44 @@ export function checkCall(method: ApiMethod, args: unknown[]): CheckedCall {
       return { args: [id(args[0], 'runId'), outDir, bool(args[2], 'overwrite')], paths: [outDir] };
     }
   }
+}
+
+function int(v: unknown, what: string, min: number, max: number): number {
+  if (typeof v !== 'number' || !Number.isInteger(v) || v < min || v > max)
+    throw new BadRequest(`${what} must be an integer in [${min}, ${max}]`);
+  return v;
+}
+
+/** A table page request rebuilt from its checked fields. */
+export function checkTablePage(v: unknown): TablePageRequest {
+  if (!isObj(v)) throw new BadRequest('the page request must be an object');
+  if (!(RESULT_TABLES as readonly unknown[]).includes(v.table))
+    throw new BadRequest(`table must be one of ${RESULT_TABLES.join(', ')}`);
+  const req: TablePageRequest = {
+    table: v.table as TablePageRequest['table'],
+    offset: int(v.offset, 'offset', 0, 1e9),
+    limit: int(v.limit, 'limit', 1, 5000),
+  };
+  if (v.sort !== undefined && v.sort !== null) {
+    if (!isObj(v.sort)) throw new BadRequest('sort must be { column, descending }');
+    req.sort = {
+      column: str(v.sort.column, 'sort.column', 256),
+      descending: bool(v.sort.descending, 'sort.descending'),
+    };
+  }
+  if (v.filter !== undefined && v.filter !== null && v.filter !== '')
+    req.filter = str(v.filter, 'filter', 256);
+  if (v.equals !== undefined && v.equals !== null) {
+    if (!isObj(v.equals)) throw new BadRequest('equals must be an object of column → value');
+    const equals: Record<string, string | number> = {};
+    for (const [k, x] of Object.entries(v.equals)) {
+      if (typeof x !== 'string' && !(typeof x === 'number' && Number.isFinite(x)))
+        throw new BadRequest(`equals.${k} must be a text or a number`);
+      equals[str(k, 'equals column', 256)] = x;
+    }
+    req.equals = equals;
+  }
+  return req;
 }
 
 /** A comparison side rebuilt from scratch: {kind: 'scan', id} or {kind: 'group', group}. */
@@ -325,6 +383,9 @@ export function createHttpClient(opts: HttpClientOptions): LoopwiseDoor {
     runSummary: (runId) => call<RunSummary | null>('runSummary', [runId]),
     cohortResults: (runId) => call<CohortResults | null>('cohortResults', [runId]),
     subjectResult: (runId, subjectId) => call<SubjectResult | null>('subjectResult', [runId, subjectId]),
+    regionEffects: (runId, measure) => call<RegionEffects | null>('regionEffects', [runId, measure]),
+    regionValues: (runId, measure, node) => call<RegionValues | null>('regionValues', [runId, measure, node]),
+    tablePage: (runId, req) => call<TablePage | null>('tablePage', [runId, req]),
     compare: (runId, a, b) => call<Comparison>('compare', [runId, a, b]),
     exportRun: (runId, outDir, overwrite) =>
       call<{ files: string[] }>('exportRun', [runId, outDir, overwrite]),

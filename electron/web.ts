@@ -227,6 +227,8 @@ export async function startWebServer(api: LoopwiseApi, options: WebServerOptions
     } catch (e) {
       // Settings the contract refuses once the cohort is open (e.g. an unknown column): a bad request.
       if (e instanceof ContractError) return send(res, 400, { error: e.message, problems: e.problems });
+      // A results query naming a column the table lacks.
+      if (e instanceof Error && e.name === 'ResultQueryError') return send(res, 400, { error: e.message });
       // A refusal to overwrite the user's files, or to export a run that did not finish, is a
       // conflict the user can resolve, not a server fault; so is a folder that cannot take the write (full disk: 507, read-only: 403).
       const kind = e instanceof Error ? e.name : '';

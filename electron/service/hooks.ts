@@ -78,10 +78,24 @@ export interface TableSink {
   abort(): Promise<void>;
 }
 
-export type StageOutput = Partial<Omit<CohortResults, 'runId' | 'provenance'>> & {
+/** What the stages make; results.ts assembles the doors' answers from it. */
+export interface StageOutput {
+  grid?: number[];
+  diagramMetric?: CohortResults['diagramMetric'];
+  groupFiltrations?: CohortResults['groupFiltrations'];
+  features?: Table;
+  /** Long form as nodes.tsv: participant_id (session), node, label, network, measure, value. */
+  nodeScores?: Table;
+  groupCurves?: CohortResults['groupCurves'];
+  groupDiagrams?: CohortResults['groupDiagrams'];
+  /** As stats.tsv (STATS_COLUMNS). */
+  stats?: Table | null;
+  /** As diagram-tests.tsv (DIAGRAM_TEST_COLUMNS). */
+  diagramTests?: Table | null;
+  embedding?: CohortResults['embedding'];
   /** Each group's mean-matrix distances (for its Euler curve in comparisons); held by the run, never sent. */
   groupDistances?: Map<string, DistanceMatrix>;
-};
+}
 
 export interface RunHooks {
   groupFiltrations?(ctx: StageContext): Promise<StageOutput>;

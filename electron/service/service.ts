@@ -29,10 +29,14 @@ import type {
   OpenCohortRequest,
   ProgressEvent,
   Provenance,
+  RegionEffects,
+  RegionValues,
   RunSummary,
   StartRunRequest,
   StatsSettings,
   SubjectResult,
+  TablePage,
+  TablePageRequest,
 } from '../api.ts';
 import { WorkerPool, defaultPoolSize } from '../workers/pool.ts';
 import { FiltrationCache } from './cache.ts';
@@ -51,8 +55,15 @@ import type { OutputFolder } from './outdir.ts';
 import { openRunFolder } from './run-folder.ts';
 import { SHARD_DIR, checkShard, readShards, shardLockName, shareOf, writeShardManifest } from './shards.ts';
 import type { ShardManifest } from './shards.ts';
-import { assembleCohortResults, assembleSubjectResult } from './results.ts';
+import {
+  assembleCohortResults,
+  assembleRegionEffects,
+  assembleRegionValues,
+  assembleSubjectResult,
+  assembleTablePage,
+} from './results.ts';
 import { ComparisonError, compareSides } from './compare.ts';
+import { REPORT_FILE, buildReport } from './report.ts';
 import { makeStageContext } from './stage-context.ts';
 import { GroupMeansGatherer, cohortStages } from './stages.ts';
 import { runFiltrationStage } from './pipeline.ts';
@@ -515,10 +526,33 @@ export class LoopwiseService implements LoopwiseApi {
       if (folder) await ctx.writeJson(tableNames(format).provenance, state.provenance);
     }
     if (folder && !state.cancelRequested) {
+      // A run whose stage failed writes no report: its results are incomplete, and say so in its summary.
+      if (state.stageFailures.length === 0) await this.writeReport(state, folder);
       await folder.finish(state.stageFailures.length > 0 ? 'failed' : 'complete');
       state.tables = { dir: folder.dir, files: folder.files() };
     }
     return folder ? folder.files() : [];
+  }
+
+  /** report.html from the results the run holds (written last, so it can name every table beside it). */
+  private async writeReport(state: RunState, folder: OutputFolder): Promise<void> {
+    if (!state.provenance) return;
+    const results = {
+      provenance: state.provenance,
+      diagramMetric: state.results.diagramMetric,
+      stats: state.results.stats ?? null,
+      diagramTests: state.results.diagramTests ?? null,
+    };
+    const leftOut = (state.run?.records ?? [])
+      .filter((r) => r.status !== 'analysed')
+      .map((r) => ({ subject: r.id, reason: r.reason ?? r.status }));
+    const html = buildReport({
+      results,
+      cohort: state.report,
+      leftOut,
+      files: [...folder.files(), REPORT_FILE],
+    });
+    await folder.writeFile(REPORT_FILE, html);
   }
 
   /**
@@ -628,6 +662,21 @@ export class LoopwiseService implements LoopwiseApi {
   async subjectResult(runId: string, subjectId: string): Promise<SubjectResult | null> {
     const s = this.runs.get(runId);
     return s ? assembleSubjectResult(s, subjectId) : null;
+  }
+
+  async regionEffects(runId: string, measure: string): Promise<RegionEffects | null> {
+    const s = this.runs.get(runId);
+    return s ? assembleRegionEffects(s, measure) : null;
+  }
+
+  async regionValues(runId: string, measure: string, node: number): Promise<RegionValues | null> {
+    const s = this.runs.get(runId);
+    return s ? assembleRegionValues(s, measure, node) : null;
+  }
+
+  async tablePage(runId: string, req: TablePageRequest): Promise<TablePage | null> {
+    const s = this.runs.get(runId);
+    return s ? assembleTablePage(s, req) : null;
   }
 
   async compare(runId: string, a: ComparisonSide, b: ComparisonSide): Promise<Comparison> {

@@ -38,7 +38,7 @@ import {
 import type { FeatureRow } from '../engine/features/index.ts';
 import { wholeDiagramMetric } from '../engine/stats/compare.ts';
 import { buildDesign } from '../engine/stats/design.ts';
-import { parseTerm } from '../engine/stats/formula.ts';
+import { designGroupColumn } from '../contract.ts';
 import type { Design, DesignSpec, DesignSubject } from '../engine/stats/design.ts';
 import { diagramDistanceMatrix, finiteDiagram, metricName } from '../engine/stats/diagram-distance.ts';
 import type { DiagramInput, DiagramMetric } from '../engine/stats/diagram-distance.ts';
@@ -521,22 +521,13 @@ async function distanceMatrixOnPool(
  * column (group for group:session).
  */
 export function groupingColumn(report: CohortReport, stats: StatsSettings): string | null {
-  const { groupColumn, effect, model, test, blocks } = stats;
-  if (groupColumn) return groupColumn;
-  const categorical = (col: string) =>
+  // The contract's rule (the renderer applies the same), a column holding text being categorical.
+  return designGroupColumn(stats, (col) =>
     report.subjects.some((s) => {
       const v = s.covariates[col];
       return v !== null && v !== undefined && typeof v !== 'number';
-    });
-  if (effect) return categorical(effect) ? effect : null;
-  if (!model || !test) return null;
-  let term: string[];
-  try {
-    term = parseTerm(test);
-  } catch {
-    return null;
-  }
-  return term.find((c) => c !== blocks && categorical(c)) ?? null;
+    }),
+  );
 }
 
 /**

@@ -40,8 +40,8 @@ function sampleLayout() {
   };
 }
 const sample = sampleLayout();
-/** The Regions chart draws the 40 regions of largest |g| (rankedBarFigure's top in lib/regions.ts). */
-const CHART_TOP = 40;
+/** The Regions chart draws a page of 50 ranked regions (REGIONS_PER_PAGE in lib/regions.ts). */
+const CHART_TOP = 50;
 
 let app: RunningApp;
 let browser: Browser;
@@ -180,6 +180,21 @@ describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
     expect(await plot(`regions-${measure}`).locator('.barlayer .point').count()).toBe(
       Math.min(CHART_TOP, sample.regions),
     );
+    // Every region is counted and reachable: the rest are on the next page.
+    expect(await page.getByTestId('region-count').textContent()).toMatch(
+      new RegExp(`^Ranks 1–${Math.min(CHART_TOP, sample.regions)} of ${sample.regions} regions`),
+    );
+    // Bars are named by the node table's labels.
+    const names = await plot(`regions-${measure}`).locator('.ytick text').allTextContents();
+    expect(names.every((n) => /^[LR]_[A-Z]+_\d+( \*)?$/.test(n))).toBe(true);
+    // A click on the top bar shows that region's values per scan: a box per group, by session.
+    const top = await plot(`regions-${measure}`).locator('.barlayer .point').last().boundingBox();
+    await page.mouse.click(top!.x + top!.width / 2, top!.y + top!.height / 2);
+    const values = page.getByTestId('region-values').locator('.plot');
+    await values.locator('.main-svg').first().waitFor({ timeout: 30_000 });
+    expect(await values.locator('.boxlayer .trace').count()).toBe(sample.groups.length);
+    const sessions = await values.locator('.xtick text').allTextContents();
+    expect(sessions.sort()).toEqual(sample.sessions.map((x) => x.replace(/^ses-/, '')).sort());
     await drawn(`regions-${measure}-axial`);
     await drawn(`regions-${measure}-sagittal`);
     await shot('4-regions');

@@ -2,8 +2,15 @@
 import Papa from 'papaparse';
 import { crc32 as zlibCrc32 } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
-import type { CohortReport, ProgressEvent, SubjectResult, Table } from '../../electron/api.ts';
-import { hedgesG } from '../../electron/engine/stats/effect-size.ts';
+import type {
+  CohortReport,
+  ProgressEvent,
+  RegionEffects,
+  RegionValues,
+  SubjectResult,
+  Table,
+} from '../../electron/api.ts';
+import { regionName, regionNumber } from '../../electron/engine/features/columns.ts';
 import {
   crc32,
   dataUrlBytes,
@@ -21,14 +28,14 @@ import {
   featureColumns,
   statsFor,
 } from '../../renderer/src/lib/groups.ts';
-import { circleLayout, layoutsFor, projections } from '../../renderer/src/lib/layout.ts';
+import { anonymousNodes, circleLayout, layoutsFor, projections } from '../../renderer/src/lib/layout.ts';
 import { mergeFailures, progressView } from '../../renderer/src/lib/progress.ts';
 import {
-  networkSummary,
-  nodeEffects,
-  nodePValues,
-  ranked,
+  pageCount,
+  pageOf,
   rankedBarFigure,
+  rankingCaption,
+  regionValuesFigure,
 } from '../../renderer/src/lib/regions.ts';
 import { settingsProblems, unplacedProblems, withInput } from '../../renderer/src/lib/settings.ts';
 import {
@@ -51,7 +58,6 @@ import {
   nodeScoreRows,
   notableIntervals,
   representativeOf,
-  subjectNodeScores,
 } from '../../renderer/src/lib/subject.ts';
 import { tableText } from '../../renderer/src/lib/tables.ts';
 import { createFakeApi } from '../web/fake-api.ts';
@@ -210,7 +216,11 @@ describe('Groups', () => {
     expect(band.y).toEqual([...b.upper, ...[...b.lower].reverse()]);
     expect(usesOnlySvg(fig)).toBe(true);
 
-    expect(featureColumns(results.features, ['age'])).toEqual(['h1_count', 'h1_total_persistence']);
+    expect(results.featureNames).toEqual(['h1_count', 'h1_total_persistence']);
+    expect(featureColumns(results.features, results.featureNames)).toEqual([
+      'h1_count',
+      'h1_total_persistence',
+    ]);
     const split = featureByGroup(results.features, 'h1_count', 'group');
     expect(split.map((s) => [s.group, s.values.length])).toEqual([
       ['control', 5],
@@ -219,74 +229,105 @@ describe('Groups', () => {
     const dist = distributionFigure(results.features, 'h1_count', 'group', ['control', 'patient']);
     expect(dist.data.map((t) => t.type)).toEqual(['violin', 'violin']);
     expect(dist.data[0].points).toBe('all');
-    expect(statsFor(results.stats, 'h1_total_persistence')[0]).toMatchObject({ p_fdr: 0.02 });
-    expect(statsFor(results.stats, 'nope')).toEqual([]);
+    const tests = statsFor(results.featureTests, 'h1_total_persistence');
+    expect(tests).toHaveLength(1);
+    expect(tests[0].family).toBe('features');
+    expect(statsFor(results.featureTests, 'nope')).toEqual([]);
   });
 });
 
 describe('Regions', () => {
-  const scores: Table = {
-    columns: ['subject', 'node', 'label', 'network', 'measure', 'value'],
-    rows: [
-      ...[1, 2, 3].map((v, i) => [`a${i}`, 0, 'L1', 'vis', 'strength', v]),
-      ...[2, 3, 4, 5].map((v, i) => [`b${i}`, 0, 'L1', 'vis', 'strength', v]),
-      ...[5, 5.5, 6].map((v, i) => [`a${i}`, 1, 'L2', 'dmn', 'strength', v]),
-      ...[1, 0.5, 1.5, 1].map((v, i) => [`b${i}`, 1, 'L2', 'dmn', 'strength', v]),
-    ],
-  };
-  const groupOf = new Map<string, string | null>([
-    ...[0, 1, 2].map((i) => [`a${i}`, 'A'] as [string, string]),
-    ...[0, 1, 2, 3].map((i) => [`b${i}`, 'B'] as [string, string]),
-  ]);
-
-  it("computes Hedges' g of B − A per node with the statistics engine and ranks by |g|", () => {
-    const effects = nodeEffects(scores, groupOf, 'A', 'B', null);
-    const l1 = effects.find((e) => e.label === 'L1')!;
-    // The engine's docstring example: g([1,2,3] − [2,3,4,5]) = −1.0658…; here B − A, so the sign flips.
-    expect(l1.g).toBeCloseTo(-hedgesG([1, 2, 3], [2, 3, 4, 5]), 12);
-    expect(l1.g).toBeCloseTo(1.0658, 4);
-    expect(l1.difference).toBeCloseTo(1.5, 12);
-    expect([l1.nA, l1.nB]).toEqual([3, 4]);
-    expect(ranked(effects, 'strength').map((e) => e.label)).toEqual(['L2', 'L1']);
-    expect(effects.every((e) => !e.significant && e.pCorrected === null)).toBe(true);
+  it('draws every region the service ranked, by the effect size of the tested model, with names as categories', async () => {
+    const runId = (await fake.startRun({ cohort: { dir: '/data/c' }, ...defaults, outDir: null })).runId;
+    const results = (await fake.cohortResults(runId))!;
+    expect(results.nodeMeasures).toEqual(['strength', 'participation']);
+    const e = (await fake.regionEffects(runId, 'strength'))!;
+    // Every region of the cohort (16), tested ones ranked by |effect_size| as the service sent them.
+    expect(e.regions).toHaveLength(16);
+    expect(e.effect_kind).toBe('partial_r');
+    const sizes = e.regions.map((r) => Math.abs(r.effect_size!));
+    expect(sizes).toEqual([...sizes].sort((x, y) => y - x));
+    const fig = rankedBarFigure(e, 0, 10);
+    const bar = fig.data[0] as { x: number[]; y: string[]; customdata: number[] };
+    // The chart draws the service's numbers, largest at the top (the last category), nothing recomputed.
+    expect(bar.x).toEqual(
+      e.regions
+        .slice(0, 10)
+        .reverse()
+        .map((r) => r.effect_size),
+    );
+    expect(bar.customdata).toEqual(
+      e.regions
+        .slice(0, 10)
+        .reverse()
+        .map((r) => r.node),
+    );
+    expect(bar.y.every((y) => /^R\d+( \*)?$/.test(y))).toBe(true);
+    expect((fig.layout.yaxis as { type: string }).type).toBe('category');
+    expect(JSON.stringify(fig.layout)).toContain('partial r');
+    // Pages reach every region and say how many there are.
+    expect(pageCount(e, 10)).toBe(2);
+    expect(pageOf(e, 1, 10)).toHaveLength(6);
+    expect(rankingCaption(e, 1, 10)).toMatch(/^Ranks 11–16 of 16 regions · 16 tested · \d+ significant/);
   });
 
-  it('marks significance only from the run’s corrected p-values, in either table layout', () => {
-    const long: Table = {
-      columns: ['measure', 'label', 'p', 'p_fwer'],
-      rows: [['strength', 'L2', 0.001, 0.01]],
-    };
-    const wide: Table = { columns: ['feature', 'p_fdr'], rows: [['strength:L1', 0.2]] };
-    expect([...nodePValues(long)]).toEqual([['strength\u0000L2', 0.01]]);
-    expect([...nodePValues(wide)]).toEqual([['strength\u0000L1', 0.2]]);
-    const effects = nodeEffects(scores, groupOf, 'A', 'B', long);
-    expect(effects.find((e) => e.label === 'L2')).toMatchObject({ significant: true, pCorrected: 0.01 });
-    const fig = rankedBarFigure(effects, 'strength', 'A', 'B');
-    expect((fig.data[0] as { y: string[] }).y).toEqual(['L1', 'L2 *']);
-    expect(networkSummary(effects, 'strength').find((n) => n.network === 'dmn')).toMatchObject({
-      nodes: 1,
+  it('names regions without a node table "region k" (1-based), never a bare number', () => {
+    const e: RegionEffects = {
+      runId: 'r',
+      measure: 'h0_join_value',
+      family: 'nodes:h0_join_value',
+      contrast: 'patient - control',
+      test: 't',
+      effect_kind: 'adjusted_d',
+      alpha: 0.05,
+      tested: 3,
       significant: 1,
-    });
+      networks: null,
+      regions: [11, 0, 5].map((node, k) => ({
+        node,
+        number: node + 1,
+        label: regionName(node, null),
+        network: null,
+        mean: 1,
+        tested: true,
+        statistic: 3 - k,
+        p_uncorrected: 0.01,
+        p_fwer: k === 0 ? 0.01 : 0.5,
+        q_fdr: 0.02,
+        effect_size: 1.5 - k * 0.5,
+        effect_low: null,
+        effect_high: null,
+        significant: k === 0,
+      })),
+    };
+    const bar = rankedBarFigure(e, 0).data[0] as { y: string[] };
+    expect(bar.y).toEqual(['region 6', 'region 1', 'region 12 *']);
+    expect(anonymousNodes(3).map((n) => n.label)).toEqual(['region 1', 'region 2', 'region 3']);
+    expect(regionNumber(11)).toBe(12);
   });
 
-  it('draws the tested model’s effect size from stats.tsv where the run tested the node, named by its kind', () => {
-    // A paired design: the service's d_z for L1 and L2 (its own model), not the renderer's pooled g.
-    const stats: Table = {
-      columns: ['family', 'feature', 'node_or_point', 'p_fwer', 'effect_kind', 'effect_size'],
-      rows: [
-        ['nodes:strength', 'strength', 'L1', 0.01, 'd_z', -2.5],
-        ['nodes:strength', 'strength', 'L2', 0.5, 'd_z', 0.3],
-      ],
+  it('shows one region’s values per scan by group, and by session within group', async () => {
+    const runId = (await fake.startRun({ cohort: { dir: '/data/c' }, ...defaults, outDir: null })).runId;
+    const v = (await fake.regionValues(runId, 'strength', 3))!;
+    expect([v.node, v.number, v.label, v.groupColumn]).toEqual([3, 4, 'R4', 'group']);
+    // The nine analysed scans (sub-10 was excluded), each with its value as in its own subject result.
+    expect(v.values).toHaveLength(9);
+    const s1 = (await fake.subjectResult(runId, 'sub-01'))!;
+    expect(v.values.find((x) => x.subject === 'sub-01')!.value).toBe(s1.nodeScores.strength[3]);
+    const fig = regionValuesFigure(v, ['control', 'patient']);
+    expect(fig.data.map((t) => [t.name, (t.y as number[]).length])).toEqual([
+      ['control', 5],
+      ['patient', 4],
+    ]);
+    const twice: RegionValues = {
+      ...v,
+      sessions: ['pre', 'post'],
+      values: v.values.flatMap((x) => ['pre', 'post'].map((session) => ({ ...x, session }))),
     };
-    const effects = nodeEffects(scores, groupOf, 'A', 'B', stats);
-    const l1 = effects.find((e) => e.label === 'L1')!;
-    expect([l1.tested, l1.effectKind]).toEqual([-2.5, 'd_z']);
-    expect(l1.g).toBeCloseTo(1.0658, 4); // the descriptive g stays for the hover-free summaries
-    expect(ranked(effects, 'strength').map((e) => e.label)).toEqual(['L1', 'L2']);
-    const fig = rankedBarFigure(effects, 'strength', 'A', 'B');
-    expect((fig.data[0] as { x: number[] }).x).toEqual([0.3, -2.5]);
-    expect(JSON.stringify(fig.layout)).toContain('d_z (paired), from the tested model');
-    expect(JSON.stringify(fig.layout)).not.toContain("Hedges' g");
+    const bySession = regionValuesFigure(twice, ['control', 'patient']);
+    expect(bySession.data[0].x).toContain('post');
+    expect(bySession.layout.boxmode).toBe('group');
+    expect(usesOnlySvg(bySession)).toBe(true);
   });
 });
 
@@ -463,71 +504,37 @@ describe('Exports', () => {
   });
 });
 
-describe('the statistics stage’s table layout', () => {
-  // Columns as electron/engine/stats/tables.ts writes stats.tsv.
-  const stats: Table = {
-    columns: ['family', 'feature', 'node_or_point', 'contrast', 'p_uncorrected', 'p_fwer', 'q_fdr'],
-    rows: [
-      ['features', 'h1_count', null, 'training - waitlist', 0.01, 0.03, 0.02],
-      ['nodes:strength', 'strength', 'L1', 'training - waitlist', 0.001, 0.004, 0.002],
-      ['nodes:strength', 'strength', 'L2', 'training - waitlist', 0.2, 0.6, 0.4],
-      ['curve:betti1', 'betti1', 0.5, 'training - waitlist', 0.01, 0.04, 0.03],
-    ],
-  };
-
-  it('reads node rows by family, measure and label, with the FWER-corrected p', () => {
-    expect([...nodePValues(stats, ['waitlist', 'training'])]).toEqual([
-      ['strength\u0000L1', 0.004],
-      ['strength\u0000L2', 0.6],
-    ]);
-  });
-
-  it('shows beside a feature only its own scalar-feature rows', () => {
-    expect(statsFor(stats, 'h1_count')).toHaveLength(1);
-    expect(statsFor(stats, 'strength')).toEqual([]);
-    expect(statsFor(stats, 'betti1')).toEqual([]);
-  });
-});
-
 describe('defaults chosen for the user', () => {
-  it('leaves out constant features and shows first the one with the smallest corrected p', () => {
+  it('leaves out constant features and shows first the one with the smallest FWER-corrected p', async () => {
     const features: Table = {
-      columns: ['participant_id', 'group', 'h0_count', 'h1_count', 'h1_entropy'],
+      columns: ['participant_id', 'group', 'h0_count', 'h1_count', 'h1_entropy', 'h1_count_z'],
       rows: [
-        ['s1', 'a', 60, 3, 1.2],
-        ['s2', 'b', 60, 5, 1.1],
+        ['s1', 'a', 60, 3, 1.2, -1],
+        ['s2', 'b', 60, 5, 1.1, 1],
       ],
     };
-    const names = featureColumns(features, []);
-    expect(names).toEqual(['h1_count', 'h1_entropy']);
-    const stats: Table = {
-      columns: ['family', 'feature', 'p_fwer'],
-      rows: [
-        ['features', 'h1_count', 0.3],
-        ['features', 'h1_entropy', 0.02],
-        ['nodes:h1_count', 'h1_count', 0.001],
-      ],
-    };
-    expect(defaultFeature(names, stats)).toBe('h1_entropy');
+    // Every feature column the run names flows through, a new family (…_z) included.
+    const names = featureColumns(features, ['h0_count', 'h1_count', 'h1_entropy', 'h1_count_z']);
+    expect(names).toEqual(['h1_count', 'h1_entropy', 'h1_count_z']);
+    const runId = (await fake.startRun({ cohort: { dir: '/data/c' }, ...defaults, outDir: null })).runId;
+    const tests = (await fake.cohortResults(runId))!.featureTests!;
+    const best = [...tests].sort((x, y) => x.p_fwer! - y.p_fwer!)[0].feature;
+    expect(defaultFeature(['h1_count', 'h1_total_persistence'], tests)).toBe(best);
     expect(defaultFeature(names, null)).toBe('h1_count');
   });
 
-  it('takes a subject’s node scores from the run’s long table when its own result has none', () => {
-    const s = { id: 's2', group: null, n: 3, matrix: [], diagrams: [], representatives: [], nodeScores: {} };
-    const table: Table = {
-      columns: ['participant_id', 'node', 'label', 'network', 'measure', 'value'],
-      rows: [
-        ['s1', 0, 'a', null, 'strength', 9],
-        ['s2', 2, 'c', null, 'strength', 3],
-        ['s2', 0, 'a', null, 'strength', 1],
-        ['s2', 1, 'b', null, 'participation', 4],
-      ],
-    };
-    const scores = subjectNodeScores(s, table);
-    expect(scores.strength[0]).toBe(1);
-    expect(scores.strength[2]).toBe(3);
-    expect(Number.isNaN(scores.strength[1])).toBe(true);
-    expect(nodeScoreRows(s, [], scores).rows[1]).toEqual([1, '2', null, null, 4]);
+  it('lists a subject’s node scores (the service fills them) by 1-based region number', async () => {
+    const runId = (await fake.startRun({ cohort: { dir: '/data/c' }, ...defaults, outDir: null })).runId;
+    const s = (await fake.subjectResult(runId, 'sub-02'))!;
+    const rows = nodeScoreRows(s, []);
+    expect(rows.columns).toEqual(['region', 'label', 'network', 'strength', 'participation']);
+    expect(rows.rows[1]).toEqual([
+      2,
+      'region 2',
+      null,
+      s.nodeScores.strength[1],
+      s.nodeScores.participation[1],
+    ]);
   });
 });
 

@@ -65,6 +65,9 @@ function checkWhole(out: string): void {
     const text = readFileSync(join(out, name), 'utf8');
     if (name.endsWith('.json')) {
       expect(() => JSON.parse(text), name).not.toThrow();
+    } else if (name === 'report.html') {
+      // Written whole or not at all (atomic): a complete document.
+      expect(text.trimEnd().endsWith('</html>'), name).toBe(true);
     } else {
       expect(name).toMatch(/^[a-z0-9-]+\.tsv$/);
       expect(text.endsWith('\n'), `${name} ends with a full line`).toBe(true);

@@ -252,7 +252,7 @@ describe('in-memory cohorts', () => {
       for (const d of degree.values()) expect(d % 2).toBe(0);
     }
     const files = await service.exportRun(runId, join(root, 'mem-export'), false);
-    expect(files.files).toEqual(['intervals.tsv', 'subjects.tsv', 'provenance.json']);
+    expect(files.files).toEqual(['intervals.tsv', 'subjects.tsv', 'provenance.json', 'report.html']);
     expect(readFileSync(join(root, 'mem-export', 'subjects.tsv'), 'utf8')).toMatch(
       /\nm4\tfailed\tcorrelation 1\.5/,
     );

@@ -135,4 +135,31 @@ describe('Electron IPC', () => {
     );
     await expect(call('exportRun', ['run-1', join(out, 'tables'), true])).resolves.toBeTruthy();
   });
+
+  it('forwards the results queries after checking their arguments, as the browser door does', async () => {
+    const { settings, stats } = await api.defaultSettings();
+    const { runId } = (await call('startRun', [
+      { cohort: { dir: sample }, settings, stats, outDir: null },
+    ])) as {
+      runId: string;
+    };
+    await expect(call('regionEffects', [runId, 'participation'])).resolves.toEqual(
+      await api.regionEffects(runId, 'participation'),
+    );
+    await expect(call('regionValues', [runId, 'participation', 0])).resolves.toMatchObject({
+      number: 1,
+      label: 'R1',
+    });
+    await expect(
+      call('tablePage', [runId, { table: 'features', offset: 0, limit: 3 }]),
+    ).resolves.toMatchObject({
+      total: 9,
+    });
+    await expect(call('regionValues', [runId, 'participation', '0'])).rejects.toThrow(
+      /node must be an integer/,
+    );
+    await expect(call('tablePage', [runId, { table: '../x', offset: 0, limit: 3 }])).rejects.toThrow(
+      /table must be one of/,
+    );
+  });
 });

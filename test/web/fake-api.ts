@@ -1,12 +1,14 @@
 /**
  * A small stand-in for the service, for the doors' tests only (never shipped): a ten-subject,
  * sixteen-region cohort whose diagrams come from the real engine on seeded random correlation
- * matrices, so the shapes the renderer sees are the contract's real shapes.
+ * matrices, so the shapes the renderer sees are the contract's real shapes. Its results are the
+ * service's own tables in the files' columns (features, nodes.tsv, stats.tsv of columns.ts), and
+ * the results queries answer through the service's assembly (electron/service/results.ts), so the
+ * renderer's tests see exactly what the doors send.
  */
 import type {
   AnalysisSettings,
   CohortReport,
-  CohortResults,
   ComparisonSide,
   CurveBand,
   FiltrationSide,
@@ -16,8 +18,24 @@ import type {
   StartRunRequest,
   StatsSettings,
   SubjectResult,
+  Table,
 } from '../../electron/api.ts';
+import type { StageOutput } from '../../electron/service/hooks.ts';
 import { defaultStatsSettings } from '../../electron/contract.ts';
+import {
+  DIAGRAM_TEST_COLUMNS,
+  NODE_TABLE_COLUMNS,
+  STATS_COLUMNS,
+} from '../../electron/engine/features/columns.ts';
+import { tTwoSidedP } from '../../electron/engine/stats/special.ts';
+import type { FiltrationCache } from '../../electron/service/cache.ts';
+import {
+  assembleCohortResults,
+  assembleRegionEffects,
+  assembleRegionValues,
+  assembleTablePage,
+  type RunView,
+} from '../../electron/service/results.ts';
 import { computePersistence } from '../../electron/engine/persistence.ts';
 import { createRng } from '../../electron/engine/random.ts';
 import {
@@ -73,7 +91,7 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
   const listeners = new Set<(e: ProgressEvent) => void>();
   const ids = Array.from({ length: 10 }, (_, i) => `sub-${String(i + 1).padStart(2, '0')}`);
   const groupOf = (i: number) => (i % 2 === 0 ? 'control' : 'patient');
-  const runs = new Map<string, { req: StartRunRequest; cancelled: boolean }>();
+  const runs = new Map<string, { req: StartRunRequest; cancelled: boolean; output?: StageOutput }>();
 
   const report = (): CohortReport => ({
     root,
@@ -151,7 +169,14 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
     };
   };
 
-  const results = (runId: string): CohortResults => {
+  /**
+   * The stages' output for a run: features, the long node table (nodes.tsv's columns), group curves
+   * and stats.tsv rows (STATS_COLUMNS) for the scalar features and every node of both measures.
+   * The node tests are point-biserial correlations with the group (= partial r of the group without
+   * covariates, a textbook identity), t = r √((n−2)/(1−r²)), two-sided p, and Bonferroni as the FWER
+   * correction: a stand-in of the right shape, not the service's permutation test.
+   */
+  const stageOutput = (): StageOutput => {
     const subs = ids.slice(0, 9).map((id) => subject(id) as SubjectResult);
     const grid = Array.from({ length: 21 }, (_, k) => k * 0.1);
     const betti = (d: number[][], t: number) => d.filter(([b, e]) => b <= t && (e === null || t < e)).length;
@@ -179,40 +204,109 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
       }
     }
     const total = (s: SubjectResult) => s.diagrams[1].reduce((a, [b, e]) => a + ((e ?? b) - b), 0);
+    const isPatient = subs.map((s) => (s.group === 'patient' ? 1 : 0));
+    const test = (family: string, feature: string, node: string | null, values: number[]) => {
+      const n = values.length;
+      const mx = values.reduce((a, v) => a + v, 0) / n;
+      const mg = isPatient.reduce((a: number, v) => a + v, 0) / n;
+      let sxy = 0;
+      let sxx = 0;
+      let syy = 0;
+      values.forEach((v, i) => {
+        sxy += (v - mx) * (isPatient[i] - mg);
+        sxx += (v - mx) ** 2;
+        syy += (isPatient[i] - mg) ** 2;
+      });
+      const r = sxx > 0 ? sxy / Math.sqrt(sxx * syy) : 0;
+      const t = r * Math.sqrt((n - 2) / Math.max(1e-12, 1 - r * r));
+      const p = tTwoSidedP(t, n - 2);
+      const row: Record<(typeof STATS_COLUMNS)[number], string | number | null> = {
+        family,
+        feature,
+        node_or_point: node,
+        contrast: 'patient - control',
+        test: 't',
+        statistic: t,
+        df_num: 1,
+        df: n - 2,
+        p_parametric: p,
+        p_uncorrected: p,
+        p_fwer: p,
+        q_fdr: p,
+        effect_kind: 'partial_r',
+        effect_size: r,
+        effect_low: null,
+        effect_high: null,
+        partial_r: r,
+        partial_eta_squared: r * r,
+        n_per_group: 'control:5 patient:4',
+        n_blocks: null,
+        scheme: 'freedman-lane',
+        permutation_mode: 'random',
+        permutations: 999,
+        seed: 42,
+      };
+      return row;
+    };
+    const nodeRows: Table['rows'] = [];
+    for (const s of subs)
+      for (const [measure, values] of Object.entries(s.nodeScores))
+        values.forEach((v, node) =>
+          nodeRows.push([s.id, node, `R${node + 1}`, NETWORKS[node % 4], measure, v]),
+        );
+    const statRows: Array<ReturnType<typeof test>> = [
+      test(
+        'features',
+        'h1_count',
+        null,
+        subs.map((s) => s.diagrams[1].length),
+      ),
+      test('features', 'h1_total_persistence', null, subs.map(total)),
+    ];
+    for (const measure of ['strength', 'participation']) {
+      const family = statRows.length;
+      for (let node = 0; node < N; node++)
+        statRows.push(
+          test(
+            `nodes:${measure}`,
+            measure,
+            `R${node + 1}`,
+            subs.map((s) => s.nodeScores[measure][node] as number),
+          ),
+        );
+      // Bonferroni over the family's nodes (a valid FWER bound).
+      for (const row of statRows.slice(family)) row.p_fwer = Math.min(1, (row.p_uncorrected as number) * N);
+    }
     return {
-      runId,
-      provenance: {
-        tool: 'loopwise',
-        version: '0.1.0',
-        engineVersion: 'fake',
-        createdAt: '2026-01-01T00:00:00.000Z',
-        settings: runs.get(runId)?.req.settings ?? defaults.settings,
-        inputHashes: Object.fromEntries(subs.map((s) => [s.id, 'ab'.repeat(32)])),
-      },
+      grid,
       features: {
-        columns: ['subject', 'group', 'age', 'h1_count', 'h1_total_persistence'],
+        columns: ['participant_id', 'group', 'age', 'h1_count', 'h1_total_persistence'],
         rows: subs.map((s, k) => [s.id, s.group, 20 + k * 3, s.diagrams[1].length, total(s)]),
       },
-      nodeScores: {
-        columns: ['subject', 'node', 'label', 'network', 'measure', 'value'],
-        rows: subs.flatMap((s) =>
-          Object.entries(s.nodeScores).flatMap(([measure, values]) =>
-            values.map((v, node) => [s.id, node, `R${node + 1}`, NETWORKS[node % 4], measure, v]),
-          ),
-        ),
-      },
+      nodeScores: { columns: ['participant_id', ...NODE_TABLE_COLUMNS], rows: nodeRows },
       groupCurves: curves,
       groupDiagrams: [],
-      stats: {
-        columns: ['feature', 'test', 'statistic', 'effect', 'p', 'p_fdr'],
-        rows: [
-          ['h1_count', 'permutation t', 1.2, 0.8, 0.21, 0.3],
-          ['h1_total_persistence', 'permutation t', 2.9, 1.9, 0.004, 0.02],
-        ],
-      },
+      stats: { columns: [...STATS_COLUMNS], rows: statRows.map((r) => STATS_COLUMNS.map((c) => r[c])) },
       diagramTests: {
-        columns: ['dimension', 'distance', 'statistic', 'p'],
-        rows: [[1, 'wasserstein-2', 0.31, 0.04]],
+        columns: [...DIAGRAM_TEST_COLUMNS],
+        rows: [
+          [
+            'H1',
+            'wasserstein-2',
+            'joint-loss',
+            0.31,
+            null,
+            null,
+            0.04,
+            'control:5 patient:4',
+            'random',
+            999,
+            42,
+            null,
+            'freedman-lane',
+            'group',
+          ],
+        ],
       },
       embedding: subs.map((s, k) => ({
         subject: s.id,
@@ -221,6 +315,47 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
         y: Math.sin(k) + (s.group === 'patient' ? 1 : 0),
         method: 'mds' as const,
       })),
+    };
+  };
+
+  /** A finished run as the service's result assembly sees it. */
+  const runView = (runId: string): RunView | null => {
+    const run = runs.get(runId);
+    if (!run) return null;
+    const rep = report();
+    return {
+      runId,
+      status: run.cancelled ? 'cancelled' : 'done',
+      run: {
+        cohortRoot: root,
+        settings: run.req.settings,
+        stats: run.req.stats,
+        records: rep.subjects.map((s, index) => ({
+          id: s.id,
+          participant: s.participant,
+          session: null,
+          index,
+          status: s.usable ? 'analysed' : 'excluded',
+          reason: s.usable ? null : 'not square',
+          key: s.usable ? s.id : null,
+          matrixSha256: null,
+          file: `${s.id}.tsv`,
+          fileSha256: null,
+        })),
+      },
+      provenance: {
+        tool: 'loopwise',
+        version: '0.1.0',
+        engineVersion: 'fake',
+        createdAt: '2026-01-01T00:00:00.000Z',
+        settings: run.req.settings,
+        inputHashes: Object.fromEntries(ids.slice(0, 9).map((id) => [id, 'ab'.repeat(32)])),
+      },
+      results: (run.output ??= stageOutput()),
+      report: rep,
+      // Only assembleSubjectResult reads the cache; the stand-in answers subjects itself.
+      cache: null as unknown as FiltrationCache,
+      source: null,
     };
   };
 
@@ -319,7 +454,23 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
     },
     async cohortResults(runId) {
       calls.push({ method: 'cohortResults', args: [runId] });
-      return runs.has(runId) ? results(runId) : null;
+      const view = runView(runId);
+      return view ? assembleCohortResults(view) : null;
+    },
+    async regionEffects(runId, measure) {
+      calls.push({ method: 'regionEffects', args: [runId, measure] });
+      const view = runView(runId);
+      return view ? assembleRegionEffects(view, measure) : null;
+    },
+    async regionValues(runId, measure, node) {
+      calls.push({ method: 'regionValues', args: [runId, measure, node] });
+      const view = runView(runId);
+      return view ? assembleRegionValues(view, measure, node) : null;
+    },
+    async tablePage(runId, req) {
+      calls.push({ method: 'tablePage', args: [runId, req] });
+      const view = runView(runId);
+      return view ? assembleTablePage(view, req) : null;
     },
     async subjectResult(runId, subjectId) {
       calls.push({ method: 'subjectResult', args: [runId, subjectId] });
@@ -341,7 +492,9 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
           group: r.group,
           diagrams: r.diagrams,
           representatives: r.representatives,
-          nodeScores: r.nodeScores,
+          nodeScores: Object.fromEntries(
+            Object.entries(r.nodeScores).map(([m, v]) => [m, v.map((x) => x ?? NaN)]),
+          ),
           curves: {},
         };
       };

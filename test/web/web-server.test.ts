@@ -321,3 +321,71 @@ describe('browser-mode server', () => {
     expect((await run(join(out, 'results'))).status).toBe(200);
   });
 });
+
+describe('results queries through the browser door', () => {
+  it('answers regionEffects, regionValues and tablePage through the HTTP client exactly as the service does', async () => {
+    const client = createHttpClient({ base, token: server.token });
+    const defaults = await api.defaultSettings();
+    const { runId } = await client.startRun({ cohort: { dir: cohort }, ...defaults, outDir: null });
+    expect(await client.regionEffects(runId, 'strength')).toEqual(await api.regionEffects(runId, 'strength'));
+    const effects = (await client.regionEffects(runId, 'strength'))!;
+    expect(effects.regions).toHaveLength(16);
+    expect(await client.regionValues(runId, 'strength', 3)).toEqual(
+      await api.regionValues(runId, 'strength', 3),
+    );
+    const req = {
+      table: 'stats' as const,
+      offset: 2,
+      limit: 5,
+      sort: { column: 'p_uncorrected', descending: true },
+      equals: { family: 'nodes:strength' },
+    };
+    const page = (await client.tablePage(runId, req))!;
+    expect(page).toEqual(await api.tablePage(runId, req));
+    expect([page.rows.length, page.total]).toEqual([5, 16]);
+    expect(api.calls.at(-1)).toEqual({ method: 'tablePage', args: [runId, req] });
+    // The cohort's results no longer carry the long tables.
+    const results = (await client.cohortResults(runId))!;
+    expect(Object.keys(results)).not.toContain('nodeScores');
+    expect(results.nodeMeasures).toEqual(['strength', 'participation']);
+  });
+
+  it('answers 400 to malformed results queries, naming the argument, before the service sees them', async () => {
+    const before = api.calls.length;
+    const bad: Array<[string, unknown[], RegExp]> = [
+      ['regionEffects', ['run-1'], /takes 2 arguments/],
+      ['regionEffects', ['run-1', ''], /measure/],
+      ['regionValues', ['run-1', 'strength', -1], /node must be an integer/],
+      ['regionValues', ['run-1', 'strength', 1.5], /node must be an integer/],
+      ['tablePage', ['run-1', { table: 'secrets', offset: 0, limit: 5 }], /table must be one of/],
+      [
+        'tablePage',
+        ['run-1', { table: 'stats', offset: 0, limit: 50_000 }],
+        /limit must be an integer in \[1, 5000\]/,
+      ],
+      [
+        'tablePage',
+        ['run-1', { table: 'stats', offset: 0, limit: 5, sort: { column: 'p', descending: 'yes' } }],
+        /sort.descending/,
+      ],
+      [
+        'tablePage',
+        ['run-1', { table: 'stats', offset: 0, limit: 5, equals: { family: {} } }],
+        /equals.family/,
+      ],
+    ];
+    for (const [method, args, message] of bad) {
+      const res = await post(method, args);
+      expect(res.status, method).toBe(400);
+      expect((await res.json()).error).toMatch(message);
+    }
+    expect(api.calls.length).toBe(before);
+    // A column the table lacks is the service's 400, naming the column.
+    const res = await post('tablePage', [
+      'run-1',
+      { table: 'stats', offset: 0, limit: 5, sort: { column: 'nope', descending: false } },
+    ]);
+    expect(res.status).toBe(400);
+    expect((await res.json()).error).toMatch(/no column nope/);
+  });
+});

@@ -114,3 +114,75 @@ export function columnsMarkdown(): string {
     ].join('\n');
   return `${table('feature column', FEATURE_COLUMNS)}\n\n${table('node measure', NODE_MEASURES)}\n`;
 }
+
+/**
+ * The columns of stats.tsv, in file order: one row per tested feature and contrast. The service's
+ * typed rows (`StatsRow` in api.ts) carry exactly these names.
+ */
+export const STATS_COLUMNS = [
+  'family',
+  'feature',
+  'node_or_point',
+  'contrast',
+  'test',
+  'statistic',
+  'df_num',
+  'df',
+  'p_parametric',
+  'p_uncorrected',
+  'p_fwer',
+  'q_fdr',
+  'effect_kind',
+  'effect_size',
+  'effect_low',
+  'effect_high',
+  'partial_r',
+  'partial_eta_squared',
+  'n_per_group',
+  'n_blocks',
+  'scheme',
+  'permutation_mode',
+  'permutations',
+  'seed',
+] as const;
+
+/** The columns of diagram-tests.tsv, in file order (`DiagramTestRow` in api.ts). */
+export const DIAGRAM_TEST_COLUMNS = [
+  'family',
+  'metric',
+  'test',
+  'statistic',
+  'df_num',
+  'df',
+  'p',
+  'n_per_group',
+  'permutation_mode',
+  'permutations',
+  'seed',
+  'warning',
+  'scheme',
+  'effect',
+] as const;
+
+/** The columns of nodes.tsv after the scan's columns (participant_id, and session in a cohort with sessions). */
+export const NODE_TABLE_COLUMNS = ['node', 'label', 'network', 'measure', 'value'] as const;
+
+/** The statistics family of a node measure in stats.tsv: `nodes:MEASURE`. */
+export function nodeFamily(measure: string): string {
+  return `nodes:${measure}`;
+}
+
+/**
+ * Region numbering. Files keep the 0-based index of a region in file order (nodes.tsv's `node`,
+ * `--drop-regions`, and stats.tsv's `node_or_point` when the cohort has no node table); what the app
+ * shows is 1-based: region k is index k − 1. A region without a node table is named `region k`.
+ *
+ *   regionNumber(0) → 1;  regionName(11, null) → 'region 12';  regionName(11, 'L_V1') → 'L_V1'
+ */
+export function regionNumber(index: number): number {
+  return index + 1;
+}
+
+export function regionName(index: number, label: string | null | undefined): string {
+  return label !== null && label !== undefined && label !== '' ? label : `region ${regionNumber(index)}`;
+}

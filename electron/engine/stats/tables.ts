@@ -9,33 +9,10 @@ import type { CohortResults, Table } from '../../api.ts';
 import type { DistanceTest } from './diagram-tests.ts';
 import type { Embedding } from './embedding.ts';
 import type { FamilyResult } from './family.ts';
+import { DIAGRAM_TEST_COLUMNS, STATS_COLUMNS } from '../features/columns.ts';
 
-export const STATS_COLUMNS = [
-  'family',
-  'feature',
-  'node_or_point',
-  'contrast',
-  'test',
-  'statistic',
-  'df_num',
-  'df',
-  'p_parametric',
-  'p_uncorrected',
-  'p_fwer',
-  'q_fdr',
-  'effect_kind',
-  'effect_size',
-  'effect_low',
-  'effect_high',
-  'partial_r',
-  'partial_eta_squared',
-  'n_per_group',
-  'n_blocks',
-  'scheme',
-  'permutation_mode',
-  'permutations',
-  'seed',
-];
+// The column lists live with every other output column name, in features/columns.ts.
+export { DIAGRAM_TEST_COLUMNS, STATS_COLUMNS } from '../features/columns.ts';
 
 const num = (v: number): number | null => (Number.isFinite(v) ? v : null);
 
@@ -81,23 +58,6 @@ export function statsTable(results: FamilyResult[]): { table: Table; warnings: s
   }
   return { table: { columns: [...STATS_COLUMNS], rows }, warnings };
 }
-
-export const DIAGRAM_TEST_COLUMNS = [
-  'family',
-  'metric',
-  'test',
-  'statistic',
-  'df_num',
-  'df',
-  'p',
-  'n_per_group',
-  'permutation_mode',
-  'permutations',
-  'seed',
-  'warning',
-  'scheme',
-  'effect',
-];
 
 export interface DiagramTestEntry {
   /** e.g. 'H1'. */

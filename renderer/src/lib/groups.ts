@@ -1,8 +1,8 @@
 /** The Groups view's logic: curve bands, feature distributions beside their tests, the subject map. */
-import type { CohortResults, CurveBand, Table } from '../../../electron/api.ts';
+import type { CohortResults, CurveBand, StatsRow, Table } from '../../../electron/api.ts';
 import { baseLayout, type Figure, type Trace } from './figure.ts';
 import { groupColour } from './format.ts';
-import { asNumber, findColumn, records, scanKey, type Cell } from './tables.ts';
+import { asNumber, records, scanKey } from './tables.ts';
 
 /** Group labels in the order they first appear in the curves (the colour order everywhere). */
 export function groupsOf(results: CohortResults): string[] {
@@ -79,35 +79,33 @@ export function curveFigure(bands: CurveBand[], curve: string, groups: string[])
 }
 
 /**
- * Scalar feature columns of the features table: numeric, varying across subjects (a constant,
- * like H0's count in a full filtration, has no distribution to show), and neither identifiers,
- * group nor covariates.
+ * The features worth a distribution: the run's feature columns (`featureNames`, whatever families
+ * it wrote) that hold a number varying across scans (a constant, like H0's count in a full
+ * filtration, has no distribution to show).
  */
-export function featureColumns(features: Table, exclude: string[]): string[] {
-  const skip = new Set(
-    ['subject', 'id', 'participant_id', 'session', 'group', ...exclude].map((s) => s.toLowerCase()),
-  );
-  return features.columns.filter((c, i) => {
-    if (skip.has(c.toLowerCase())) return false;
-    const values = features.rows
-      .map((r) => r[i])
-      .filter((v): v is number => typeof v === 'number' && Number.isFinite(v));
-    return values.length > 0 && values.some((v) => v !== values[0]);
+export function featureColumns(features: Table, names: string[]): string[] {
+  return names.filter((c) => {
+    const i = features.columns.indexOf(c);
+    if (i < 0) return false;
+    let first: number | null = null;
+    for (const r of features.rows) {
+      const v = r[i];
+      if (typeof v !== 'number' || !Number.isFinite(v)) continue;
+      if (first === null) first = v;
+      else if (v !== first) return true;
+    }
+    return false;
   });
 }
 
-/** The feature shown first: the one with the smallest corrected p in the run's tests, else the first. */
-export function defaultFeature(features: string[], stats: Table | null): string {
+/** The feature shown first: the one with the smallest FWER-corrected p in the run's feature tests, else the first. */
+export function defaultFeature(features: string[], tests: StatsRow[] | null): string {
   let best = features[0] ?? '';
   let bestP = Infinity;
-  for (const f of features) {
-    for (const row of statsFor(stats, f)) {
-      const key = CORRECTED_P.find((c) => c in row);
-      const p = key ? asNumber(row[key]) : null;
-      if (p !== null && p < bestP) {
-        bestP = p;
-        best = f;
-      }
+  for (const row of tests ?? []) {
+    if (row.p_fwer !== null && row.p_fwer < bestP && features.includes(row.feature)) {
+      bestP = row.p_fwer;
+      best = row.feature;
     }
   }
   return best;
@@ -119,7 +117,8 @@ export function featureByGroup(
   feature: string,
   groupColumn: string,
 ): Array<{ group: string; subjects: string[]; values: number[] }> {
-  const subjectCol = findColumn(features, ['subject', 'participant_id', 'id']);
+  // features.tsv's first column is participant_id (then session, where the cohort has sessions).
+  const subjectCol = features.columns[0] ?? null;
   const out = new Map<string, { group: string; subjects: string[]; values: number[] }>();
   for (const r of records(features)) {
     const g = r[groupColumn];
@@ -163,31 +162,10 @@ export function distributionFigure(
   };
 }
 
-/**
- * The stats rows about one scalar feature (every contrast), as column → value. Node and curve
- * families (which reuse the measure's name as their feature) are left out.
- */
-export function statsFor(stats: Table | null, feature: string): Array<Record<string, Cell>> {
-  if (!stats) return [];
-  const col = findColumn(stats, ['feature', 'measure', 'name', 'variable']);
-  if (!col) return [];
-  const family = findColumn(stats, ['family']);
-  return records(stats).filter((r) => r[col] === feature && (!family || r[family] === 'features'));
+/** The run's tests of one scalar feature (every contrast). */
+export function statsFor(tests: StatsRow[] | null, feature: string): StatsRow[] {
+  return (tests ?? []).filter((r) => r.feature === feature);
 }
-
-/** Columns of a stats table that hold a corrected p-value, in order of preference. */
-export const CORRECTED_P = [
-  'p_fwer',
-  'q_fdr',
-  'p_fdr',
-  'p_corrected',
-  'p_adjusted',
-  'p_adj',
-  'q',
-  'q_value',
-  'p_holm',
-];
-export const RAW_P = ['p', 'p_uncorrected', 'p_value', 'pvalue', 'p_raw'];
 
 /** The map methods the run computed (MDS first). */
 export function embeddingMethods(results: CohortResults): Array<'mds' | 'umap'> {

@@ -1,5 +1,6 @@
 /** Where to draw nodes: by their coordinates (two orthogonal projections), or on a circle by network. */
 import type { NodeInfo } from '../../../electron/api.ts';
+import { regionName } from '../../../electron/engine/features/columns.ts';
 
 export interface Placed {
   index: number;
@@ -78,11 +79,11 @@ export function circleLayout(nodes: NodeInfo[]): NodeLayout {
   return { kind: 'circle', xTitle: '', yTitle: '', nodes: placed };
 }
 
-/** Nodes without a node table: labelled by 1-based index, no network. */
+/** Regions without a node table: named `region k`, k the 1-based number (columns.ts regionName), no network. */
 export function anonymousNodes(n: number): NodeInfo[] {
   return Array.from({ length: n }, (_, i) => ({
     index: i,
-    label: String(i + 1),
+    label: regionName(i, null),
     network: null,
     x: null,
     y: null,

@@ -1,79 +1,13 @@
-/** The Regions view's logic: per node × measure group differences, their ranking, layouts and network summaries. */
-import type { NodeInfo, Table } from '../../../electron/api.ts';
-import { hedgesG } from '../../../electron/engine/stats/effect-size.ts';
-import { baseLayout, type Figure, type Trace } from './figure.ts';
-import type { NodeLayout } from './layout.ts';
-import { CORRECTED_P } from './groups.ts';
-import { asNumber, findColumn, records, scanKey } from './tables.ts';
-
-export interface NodeEffect {
-  node: number;
-  label: string;
-  network: string | null;
-  measure: string;
-  /** Mean of group B minus mean of group A. */
-  difference: number;
-  /** Hedges' g of B − A: the difference over the pooled SD, small-sample corrected. NaN when undefined. */
-  g: number;
-  nA: number;
-  nB: number;
-  /** Corrected p from the run's statistics, when they tested this node and measure. */
-  pCorrected: number | null;
-  /**
-   * The effect size the run's statistics report for this node and measure (from the tested model:
-   * adjusted d, d_z, partial r or partial η², named by `effectKind`), or null when untested.
-   */
-  tested: number | null;
-  effectKind: string | null;
-  significant: boolean;
-}
-
-export function measuresOf(nodeScores: Table): string[] {
-  const col = findColumn(nodeScores, ['measure']);
-  if (!col) return [];
-  return [...new Set(records(nodeScores).map((r) => String(r[col])))];
-}
-
 /**
- * Corrected p per (measure, node label) from the stats table's node-level rows. Layouts read:
- * the statistics stage's (family 'nodes:<measure>', feature = measure, node_or_point = label);
- * columns 'measure' and 'node'/'label'; or a feature named 'measure:label'. With several contrasts,
- * the one naming both groups is used.
+ * The Regions view's figures, from what the service answers (api.ts `RegionEffects`,
+ * `RegionValues`): the effect sizes, p-values and ranking are the run's statistics (stats.tsv);
+ * nothing here computes a statistic. Regions are shown 1-based (`region 12` is index 11) and named
+ * by the node table's label where there is one (engine/features/columns.ts `regionName`).
  */
-export function nodePValues(
-  stats: Table | null,
-  groups: [string, string] | null = null,
-): Map<string, number> {
-  const out = new Map<string, number>();
-  if (!stats) return out;
-  const pCol = findColumn(stats, CORRECTED_P);
-  if (!pCol) return out;
-  const familyCol = findColumn(stats, ['family']);
-  const measureCol = findColumn(stats, ['measure']);
-  const nodeCol = findColumn(stats, ['node_or_point', 'label', 'node', 'region']);
-  const featureCol = findColumn(stats, ['feature', 'name', 'variable']);
-  const contrastCol = findColumn(stats, ['contrast']);
-  let rows = records(stats);
-  if (contrastCol && groups) {
-    const both = rows.filter((r) => groups.every((g) => String(r[contrastCol] ?? '').includes(g)));
-    if (both.length) rows = both;
-  }
-  for (const r of rows) {
-    const p = asNumber(r[pCol]);
-    if (p === null) continue;
-    const family = familyCol ? String(r[familyCol] ?? '') : '';
-    if (familyCol && nodeCol && family.startsWith('nodes:')) {
-      const measure = featureCol && r[featureCol] !== null ? String(r[featureCol]) : family.slice(6);
-      if (!out.has(`${measure}\u0000${r[nodeCol]}`)) out.set(`${measure}\u0000${r[nodeCol]}`, p);
-    } else if (!familyCol && measureCol && nodeCol && r[measureCol] !== null && r[nodeCol] !== null) {
-      out.set(`${r[measureCol]}\u0000${r[nodeCol]}`, p);
-    } else if (!familyCol && featureCol && typeof r[featureCol] === 'string') {
-      const m = /^(.+?)(?::|\[|\/)(.+?)\]?$/.exec(r[featureCol] as string);
-      if (m) out.set(`${m[1]}\u0000${m[2]}`, p);
-    }
-  }
-  return out;
-}
+import type { NodeInfo, RegionEffect, RegionEffects, RegionValues } from '../../../electron/api.ts';
+import { baseLayout, type Figure, type Trace } from './figure.ts';
+import { groupColour } from './format.ts';
+import type { NodeLayout } from './layout.ts';
 
 /** Human names of the statistics' effect-size kinds (the `effect_kind` column of stats.tsv). */
 export const EFFECT_KIND_NAMES: Record<string, string> = {
@@ -83,167 +17,106 @@ export const EFFECT_KIND_NAMES: Record<string, string> = {
   partial_eta_squared: 'partial η²',
 };
 
-/** The effect size and its kind per (measure, node label) from the stats table's node families. */
-export function nodeTestedEffects(stats: Table | null): Map<string, { value: number; kind: string }> {
-  const out = new Map<string, { value: number; kind: string }>();
-  if (!stats) return out;
-  const familyCol = findColumn(stats, ['family']);
-  const nodeCol = findColumn(stats, ['node_or_point']);
-  const sizeCol = findColumn(stats, ['effect_size']);
-  const kindCol = findColumn(stats, ['effect_kind']);
-  if (!familyCol || !nodeCol || !sizeCol || !kindCol) return out;
-  for (const r of records(stats)) {
-    const family = String(r[familyCol] ?? '');
-    const value = asNumber(r[sizeCol]);
-    if (!family.startsWith('nodes:') || value === null) continue;
-    const key = `${family.slice(6)}\u0000${r[nodeCol]}`;
-    if (!out.has(key)) out.set(key, { value, kind: String(r[kindCol]) });
-  }
-  return out;
+/** Bars per page of the ranked chart. */
+export const REGIONS_PER_PAGE = 50;
+
+/** The value a region is drawn with: the tested model's effect size, or its mean where the run tested nothing. */
+export function shownValue(r: RegionEffect): number | null {
+  return r.tested ? r.effect_size : r.mean;
 }
 
-/** The value the Regions view ranks and draws: the tested model's effect size when there is one, else Hedges' g. */
-export function shownEffect(e: NodeEffect): number {
-  return e.tested ?? e.g;
+/** The name of what is drawn: the effect size's kind, or the measure's mean when untested. */
+export function shownName(e: RegionEffects): string {
+  if (e.tested === 0 || !e.effect_kind) return `mean ${e.measure} (not tested in this run)`;
+  return EFFECT_KIND_NAMES[e.effect_kind] ?? e.effect_kind;
 }
 
-/** The name of what the Regions view draws for a measure. */
-export function shownEffectName(effects: NodeEffect[], measure: string): string {
-  const kind = effects.find((e) => e.measure === measure && e.effectKind)?.effectKind ?? null;
-  return kind ? `${EFFECT_KIND_NAMES[kind] ?? kind}, from the tested model` : "Hedges' g";
+/** The regions of one page of the ranking (page 0 is ranks 1 … perPage). */
+export function pageOf(e: RegionEffects, page: number, perPage = REGIONS_PER_PAGE): RegionEffect[] {
+  return e.regions.slice(page * perPage, (page + 1) * perPage);
 }
+
+export function pageCount(e: RegionEffects, perPage = REGIONS_PER_PAGE): number {
+  return Math.max(1, Math.ceil(e.regions.length / perPage));
+}
+
+/** "Ranks 1–50 of 200 regions · 200 tested · 7 significant (corrected p < 0.05)". */
+export function rankingCaption(e: RegionEffects, page: number, perPage = REGIONS_PER_PAGE): string {
+  const from = page * perPage + 1;
+  const to = Math.min(e.regions.length, (page + 1) * perPage);
+  const tests =
+    e.tested > 0
+      ? ` · ${e.tested} tested · ${e.significant} significant (FWER-corrected p < ${e.alpha})`
+      : ' · none tested in this run';
+  return `Ranks ${from}–${to} of ${e.regions.length} regions${tests}`;
+}
+
+const fmt = (v: number | null, digits = 3) => (v === null ? 'n/a' : v.toPrecision(digits));
 
 /**
- * Group differences of every node and measure between groups A (reference) and B, from the long
- * node-score table and each subject's group. Significance is read from the run's corrected p-values
- * (alpha 0.05, common practice); nodes the run did not test are never marked.
+ * The ranked bar chart of one page: one bar per region, largest first at the top, significant ones
+ * outlined and starred. Categories are region names (never numbers, so the axis never becomes a
+ * number line); a bar's customdata is its 0-based index for the click.
  */
-export function nodeEffects(
-  nodeScores: Table,
-  groupOf: Map<string, string | null>,
-  groupA: string,
-  groupB: string,
-  stats: Table | null,
-  alpha = 0.05,
-): NodeEffect[] {
-  const subj = findColumn(nodeScores, ['subject', 'participant_id', 'id']);
-  const nodeCol = findColumn(nodeScores, ['node', 'index']);
-  const labelCol = findColumn(nodeScores, ['label']);
-  const netCol = findColumn(nodeScores, ['network']);
-  const measureCol = findColumn(nodeScores, ['measure']);
-  const valueCol = findColumn(nodeScores, ['value']);
-  if (!subj || !nodeCol || !measureCol || !valueCol) return [];
-  const cells = new Map<
-    string,
-    { node: number; label: string; network: string | null; measure: string; a: number[]; b: number[] }
-  >();
-  for (const r of records(nodeScores)) {
-    const g = groupOf.get(scanKey(r, subj));
-    if (g !== groupA && g !== groupB) continue;
-    const v = asNumber(r[valueCol]);
-    const node = asNumber(r[nodeCol]);
-    if (v === null || node === null) continue;
-    const measure = String(r[measureCol]);
-    const key = `${measure}\u0000${node}`;
-    let c = cells.get(key);
-    if (!c) {
-      c = {
-        node,
-        label: labelCol ? String(r[labelCol] ?? node) : String(node),
-        network: netCol && r[netCol] !== null ? String(r[netCol]) : null,
-        measure,
-        a: [],
-        b: [],
-      };
-      cells.set(key, c);
-    }
-    (g === groupA ? c.a : c.b).push(v);
-  }
-  const ps = nodePValues(stats, [groupA, groupB]);
-  const tested = nodeTestedEffects(stats);
-  return [...cells.values()].map((c) => {
-    const mean = (x: number[]) => (x.length ? x.reduce((s, v) => s + v, 0) / x.length : NaN);
-    const p = ps.get(`${c.measure}\u0000${c.label}`) ?? ps.get(`${c.measure}\u0000${c.node}`) ?? null;
-    const t = tested.get(`${c.measure}\u0000${c.label}`) ?? tested.get(`${c.measure}\u0000${c.node}`) ?? null;
-    return {
-      node: c.node,
-      label: c.label,
-      network: c.network,
-      measure: c.measure,
-      difference: mean(c.b) - mean(c.a),
-      // Hedges (1981) with the exact small-sample factor, from the statistics engine.
-      g: c.a.length >= 2 && c.b.length >= 2 ? hedgesG(c.b, c.a) : NaN,
-      nA: c.a.length,
-      nB: c.b.length,
-      pCorrected: p,
-      tested: t?.value ?? null,
-      effectKind: t?.kind ?? null,
-      significant: p !== null && p < alpha,
-    };
-  });
-}
-
-/** One measure's effects, largest |shown effect| first (undefined effects last). */
-export function ranked(effects: NodeEffect[], measure: string): NodeEffect[] {
-  const key = (e: NodeEffect) => (Number.isFinite(shownEffect(e)) ? Math.abs(shownEffect(e)) : -1);
-  return effects.filter((e) => e.measure === measure).sort((x, y) => key(y) - key(x) || x.node - y.node);
-}
-
-/** The ranked bar chart: one bar per node, significant ones outlined and starred. */
-export function rankedBarFigure(
-  effects: NodeEffect[],
-  measure: string,
-  groupA: string,
-  groupB: string,
-  top = 40,
-): Figure {
-  const rows = ranked(effects, measure).slice(0, top).reverse();
-  const name = shownEffectName(effects, measure);
-  const value = (e: NodeEffect) => shownEffect(e);
+export function rankedBarFigure(e: RegionEffects, page: number, perPage = REGIONS_PER_PAGE): Figure {
+  const rows = pageOf(e, page, perPage).slice().reverse();
+  const name = shownName(e);
+  const rank = new Map(e.regions.map((r, k) => [r.node, k + 1]));
   return {
-    name: `regions-${measure}`,
+    name: `regions-${e.measure}`,
     data: [
       {
         type: 'bar',
         orientation: 'h',
-        x: rows.map((e) => (Number.isFinite(value(e)) ? value(e) : 0)),
-        y: rows.map((e) => (e.significant ? `${e.label} *` : e.label)),
+        x: rows.map((r) => shownValue(r) ?? 0),
+        y: rows.map((r) => (r.significant ? `${r.label} *` : r.label)),
+        customdata: rows.map((r) => r.node),
+        text: rows.map(
+          (r) =>
+            `#${rank.get(r.node)} ${r.label}${r.network ? ` (${r.network})` : ''}<br>` +
+            `${name} = ${fmt(shownValue(r))}` +
+            (r.tested
+              ? `${r.effect_low !== null ? ` [${fmt(r.effect_low)}, ${fmt(r.effect_high)}]` : ''}<br>corrected p (FWER) = ${fmt(r.p_fwer, 2)}`
+              : ''),
+        ),
+        // The text is for the hover only, never written on the bars.
+        textposition: 'none',
+        hovertemplate: '%{text}<extra></extra>',
         marker: {
-          color: rows.map((e) => (value(e) >= 0 ? '#D55E00' : '#0072B2')),
-          line: { color: rows.map((e) => (e.significant ? '#000' : 'rgba(0,0,0,0)')), width: 2 },
+          color: rows.map((r) => ((shownValue(r) ?? 0) >= 0 ? '#D55E00' : '#0072B2')),
+          line: { color: rows.map((r) => (r.significant ? '#000' : 'rgba(0,0,0,0)')), width: 2 },
         },
-        customdata: rows.map((e) => [e.pCorrected ?? 'not tested', e.network ?? '']),
-        hovertemplate: `%{y}: ${name} = %{x:.3f}<br>corrected p: %{customdata[0]}<br>%{customdata[1]}<extra></extra>`,
       },
     ],
     layout: baseLayout(
-      name === "Hedges' g"
-        ? `${measure}: ${groupB} − ${groupA} (Hedges' g; * corrected p < 0.05)`
-        : `${measure}: ${name} (* corrected p < 0.05)`,
+      e.tested > 0
+        ? `${e.measure}: ${name} of ${e.contrast ?? 'the tested term'} (* corrected p < ${e.alpha})`
+        : `${e.measure}: ${name}`,
       {
         height: Math.max(320, 18 * rows.length + 90),
         margin: { l: 140, r: 20, t: 40, b: 50 },
         xaxis: { title: { text: name }, zeroline: true },
-        yaxis: { automargin: true },
+        // Category axis: names are never read as numbers; order as given (largest at the top).
+        yaxis: {
+          type: 'category',
+          automargin: true,
+          categoryorder: 'array',
+          categoryarray: rows.map((r) => (r.significant ? `${r.label} *` : r.label)),
+        },
       },
     ),
   };
 }
 
-/** Nodes on a layout, sized and coloured by the shown effect (the tested model's, else Hedges' g; diverging, symmetric about 0). */
-export function nodeMapFigure(
-  layout: NodeLayout,
-  effects: NodeEffect[],
-  measure: string,
-  nodes: NodeInfo[],
-): Figure {
-  const byNode = new Map(effects.filter((e) => e.measure === measure).map((e) => [e.node, e]));
-  const name = shownEffectName(effects, measure);
-  const g = layout.nodes.map((n) => {
-    const e = byNode.get(n.index);
-    return e ? shownEffect(e) : NaN;
+/** Regions on a layout, sized and coloured by the shown value (diverging, symmetric about 0); customdata is the index. */
+export function nodeMapFigure(layout: NodeLayout, e: RegionEffects, nodes: NodeInfo[]): Figure {
+  const byNode = new Map(e.regions.map((r) => [r.node, r]));
+  const name = shownName(e);
+  const v = layout.nodes.map((n) => {
+    const r = byNode.get(n.index);
+    return r ? shownValue(r) : null;
   });
-  const maxAbs = Math.max(1e-9, ...g.filter(Number.isFinite).map(Math.abs));
+  const maxAbs = Math.max(1e-9, ...v.filter((x): x is number => x !== null).map(Math.abs));
   const sig = layout.nodes.map((n) => byNode.get(n.index)?.significant ?? false);
   const circle = layout.kind === 'circle';
   const traces: Trace[] = [
@@ -252,16 +125,19 @@ export function nodeMapFigure(
       mode: 'markers',
       x: layout.nodes.map((n) => n.x),
       y: layout.nodes.map((n) => n.y),
-      text: layout.nodes.map((n) => `${n.label}${n.network ? ` (${n.network})` : ''}`),
-      customdata: g.map((v) => (Number.isFinite(v) ? v.toFixed(3) : 'n/a')),
-      hovertemplate: `%{text}<br>${name} = %{customdata}<extra></extra>`,
+      text: layout.nodes.map(
+        (n, k) =>
+          `${byNode.get(n.index)?.label ?? n.label}${n.network ? ` (${n.network})` : ''}<br>${name} = ${fmt(v[k])}`,
+      ),
+      customdata: layout.nodes.map((n) => n.index),
+      hovertemplate: '%{text}<extra></extra>',
       marker: {
-        size: g.map((v) => 6 + 18 * (Number.isFinite(v) ? Math.abs(v) / maxAbs : 0)),
-        color: g.map((v) => (Number.isFinite(v) ? v : 0)),
+        size: v.map((x) => 6 + 18 * (x === null ? 0 : Math.abs(x) / maxAbs)),
+        color: v.map((x) => x ?? 0),
         colorscale: 'RdBu',
         cmin: -maxAbs,
         cmax: maxAbs,
-        colorbar: { title: { text: name === "Hedges' g" ? 'g' : name.split(',')[0] }, thickness: 12 },
+        colorbar: { title: { text: name.split(' (')[0] }, thickness: 12 },
         line: { color: sig.map((s) => (s ? '#000' : '#fff')), width: sig.map((s) => (s ? 2.5 : 1)) },
       },
       showlegend: false,
@@ -269,12 +145,12 @@ export function nodeMapFigure(
   ];
   if (circle) traces.push(...networkLabels(layout, nodes));
   const title = circle
-    ? 'Nodes by network'
+    ? 'Regions by network'
     : layout.kind === 'axial'
       ? 'Axial (from above)'
       : 'Sagittal (from the side)';
   return {
-    name: `regions-${measure}-${layout.kind}`,
+    name: `regions-${e.measure}-${layout.kind}`,
     data: traces,
     layout: baseLayout(title, {
       xaxis: { title: { text: layout.xTitle }, visible: !circle, zeroline: false },
@@ -314,29 +190,61 @@ export function networkLabels(layout: NodeLayout, _nodes: NodeInfo[]): Trace[] {
   ];
 }
 
-export interface NetworkSummary {
-  network: string;
-  nodes: number;
-  meanG: number;
-  maxAbsG: number;
-  significant: number;
-}
-
-/** Per network: how many nodes, their mean and largest |g|, how many reach corrected significance. */
-export function networkSummary(effects: NodeEffect[], measure: string): NetworkSummary[] {
-  const by = new Map<string, NodeEffect[]>();
-  for (const e of effects.filter((x) => x.measure === measure)) {
-    const key = e.network ?? '(none)';
-    by.set(key, [...(by.get(key) ?? []), e]);
-  }
-  return [...by].map(([network, es]) => {
-    const gs = es.map((e) => e.g).filter(Number.isFinite);
+/**
+ * One region's values per scan: a box with every scan as a point, one box per group, and per
+ * session within a group when the cohort has sessions (x = session, a trace per group). Scans
+ * without a value are left out and counted in the title.
+ */
+export function regionValuesFigure(v: RegionValues, groups: string[]): Figure {
+  const shown = v.values.filter((x) => x.value !== null);
+  const missing = v.values.length - shown.length;
+  const bySession = v.sessions !== null && v.sessions.length > 1;
+  const keys = [...new Set(shown.map((x) => x.group ?? 'all scans'))];
+  const data: Trace[] = keys.map((g) => {
+    const mine = shown.filter((x) => (x.group ?? 'all scans') === g);
     return {
-      network,
-      nodes: es.length,
-      meanG: gs.length ? gs.reduce((s, v) => s + v, 0) / gs.length : NaN,
-      maxAbsG: gs.length ? Math.max(...gs.map(Math.abs)) : NaN,
-      significant: es.filter((e) => e.significant).length,
+      type: 'box',
+      name: g,
+      x: mine.map((x) => (bySession ? (x.session ?? 'n/a') : g)),
+      y: mine.map((x) => x.value),
+      text: mine.map((x) => x.subject),
+      boxpoints: 'all',
+      jitter: 0.4,
+      pointpos: 0,
+      marker: { size: 5, color: groupColour(groups, g === 'all scans' ? null : g) },
+      line: { color: groupColour(groups, g === 'all scans' ? null : g) },
+      hovertemplate: '%{text}: %{y:.4g}<extra></extra>',
     };
   });
+  const split = [v.groupColumn, bySession ? 'session' : null].filter(Boolean).join(' and ');
+  return {
+    name: `region-${v.measure}-${v.number}`,
+    data,
+    layout: baseLayout(
+      `${v.label}: ${v.measure} per scan${split ? ` by ${split}` : ''}` +
+        (missing > 0 ? ` (${missing} without a value)` : ''),
+      {
+        boxmode: bySession ? 'group' : 'overlay',
+        showlegend: bySession,
+        xaxis: {
+          type: 'category',
+          title: { text: bySession ? 'session' : (v.groupColumn ?? '') },
+          ...(bySession && v.sessions ? { categoryorder: 'array', categoryarray: v.sessions } : {}),
+        },
+        yaxis: { title: { text: v.measure }, zeroline: false },
+      },
+    ),
+  };
+}
+
+/** The network table's rows (service-computed summaries), formatted by the DataTable. */
+export function networkRows(e: RegionEffects): Array<Array<string | number | null>> {
+  return (e.networks ?? []).map((n) => [
+    n.network,
+    n.regions,
+    n.tested,
+    n.mean_effect,
+    n.max_abs_effect,
+    n.significant,
+  ]);
 }

@@ -39,14 +39,16 @@ export class Session {
   /** Subjects seen during the run: whether their filtration came from the cache. */
   seen = $state<Array<{ subject: string; cached: boolean }>>([]);
   summary = $state<RunSummary | null>(null);
-  results = $state<CohortResults | null>(null);
+  // Raw (not deeply reactive): results are replaced whole, never edited, and proxying every cell
+  // of their tables made each read slow.
+  results = $state.raw<CohortResults | null>(null);
 
   /** The Compare view's two sides, as 'scan:ID' or 'group:LEVEL' (kept across views). */
   compareA = $state('');
   compareB = $state('');
 
   subjectId = $state<string | null>(null);
-  subject = $state<SubjectResult | null>(null);
+  subject = $state.raw<SubjectResult | null>(null);
 
   private lastReused = 0;
   /**

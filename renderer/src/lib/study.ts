@@ -7,8 +7,11 @@ import type {
   Severity,
   StatsSettings,
 } from '../../../electron/api.ts';
-import { formulaColumns, statisticsRequested } from '../../../electron/contract.ts';
-import { parseTerm } from '../../../electron/engine/stats/formula.ts';
+import {
+  designGroupColumn as designGroupColumn_,
+  formulaColumns,
+  statisticsRequested,
+} from '../../../electron/contract.ts';
 
 export interface ParticipantRow {
   id: string;
@@ -251,18 +254,11 @@ export function proposedDesign(report: CohortReport, st: StatsSettings): StatsSe
  * column of the tested term that is not the blocks column (group for group:session).
  */
 export function designGroupColumn(st: StatsSettings | null, report: CohortReport | null): string | null {
-  if (!st) return null;
-  if (st.groupColumn) return st.groupColumn;
-  const categorical = (name: string) => report?.columns.find((c) => c.name === name)?.kind === 'categorical';
-  if (st.effect) return categorical(st.effect) ? st.effect : null;
-  if (!st.model || !st.test) return null;
-  let term: string[];
-  try {
-    term = parseTerm(st.test);
-  } catch {
-    return null;
-  }
-  return term.find((c) => c !== st.blocks && categorical(c)) ?? null;
+  // The contract's rule (the service uses the same), with the cohort's column kinds.
+  return designGroupColumn_(
+    st,
+    (name) => report?.columns.find((c) => c.name === name)?.kind === 'categorical',
+  );
 }
 
 /** A line under the design fields for a cohort whose scans come in sessions, or null without sessions. */

@@ -1,8 +1,8 @@
 /** The Subject view's logic: barcode and diagram with one shared selection, heatmap, cycle on the node layout. */
-import type { NodeInfo, SubjectResult, Table } from '../../../electron/api.ts';
+import type { NodeInfo, SubjectResult } from '../../../electron/api.ts';
+import { regionName, regionNumber } from '../../../electron/engine/features/columns.ts';
 import { baseLayout, type Figure, type Trace } from './figure.ts';
 import type { NodeLayout } from './layout.ts';
-import { asNumber, findColumn, records, scanKey } from './tables.ts';
 
 export interface IntervalRow {
   /** Stable id across both plots: `${dim}:${k}`, k the position in the subject's H_dim diagram. */
@@ -193,8 +193,9 @@ export function heatmapFigure(s: SubjectResult, nodes: NodeInfo[]): Figure {
       if (i !== j && Number.isFinite(row[j])) maxAbs = Math.max(maxAbs, Math.abs(row[j]));
     z.push(row);
   }
-  const labels =
-    nodes.length === s.n ? nodes.map((n) => n.label) : Array.from({ length: s.n }, (_, i) => String(i + 1));
+  const labels = Array.from({ length: s.n }, (_, i) =>
+    regionName(i, nodes.length === s.n ? nodes[i].label : null),
+  );
   return {
     name: `matrix-${s.id}`,
     data: [
@@ -279,44 +280,19 @@ export function cycleFigure(
   };
 }
 
-/**
- * The subject's node scores: its own result's when present, else its rows of the run's long
- * node-score table (participant, node, measure, value).
- */
-export function subjectNodeScores(s: SubjectResult, table: Table | null): Record<string, number[]> {
-  if (Object.keys(s.nodeScores).length > 0 || !table) return s.nodeScores;
-  const subj = findColumn(table, ['participant_id', 'subject', 'id']);
-  const node = findColumn(table, ['node', 'index']);
-  const measure = findColumn(table, ['measure']);
-  const value = findColumn(table, ['value']);
-  if (!subj || !node || !measure || !value) return {};
-  const out: Record<string, number[]> = {};
-  for (const r of records(table)) {
-    if (scanKey(r, subj) !== s.id) continue;
-    const i = asNumber(r[node]);
-    const v = asNumber(r[value]);
-    if (i === null || i < 0 || i >= s.n) continue;
-    const m = String(r[measure]);
-    out[m] ??= new Array<number>(s.n).fill(NaN);
-    out[m][i] = v ?? NaN;
-  }
-  return out;
-}
-
-/** The subject's node scores as table rows: node, label, network, one value per measure. */
+/** The subject's node scores as table rows: number (1-based), label, network, one value per measure. */
 export function nodeScoreRows(
   s: SubjectResult,
   nodes: NodeInfo[],
-  scores: Record<string, number[]> = s.nodeScores,
 ): { columns: string[]; rows: Array<Array<string | number | null>> } {
-  const measures = Object.keys(scores);
+  const measures = Object.keys(s.nodeScores);
   return {
-    columns: ['node', 'label', 'network', ...measures],
+    columns: ['region', 'label', 'network', ...measures],
     rows: Array.from({ length: s.n }, (_, i) => [
-      i,
-      nodes[i]?.label ?? String(i + 1),
+      regionNumber(i),
+      regionName(i, nodes[i]?.label),
       nodes[i]?.network ?? null,
-      ...measures.map((m) => (Number.isFinite(scores[m][i]) ? scores[m][i] : null)),
+      ...measures.map((m) => s.nodeScores[m][i] ?? null),
     ]),
   };
 }

@@ -4,23 +4,6 @@ import { MISSING_SPELLINGS, MISSING_VALUE, scanId } from '../../../electron/cont
 
 export type Cell = string | number | null;
 
-/** The first of the candidate names the table has (case-insensitive), or null. */
-export function findColumn(table: Table, candidates: string[]): string | null {
-  const lower = table.columns.map((c) => c.toLowerCase());
-  for (const c of candidates) {
-    const i = lower.indexOf(c.toLowerCase());
-    if (i >= 0) return table.columns[i];
-  }
-  return null;
-}
-
-export function column(table: Table, name: string): Cell[] {
-  const i = table.columns.indexOf(name);
-  if (i < 0) return [];
-  return table.rows.map((r) => r[i] ?? null);
-}
-
-/** Rows as objects, column → value. */
 /**
  * The scan key of a row of a service table: the participant, plus `_ses-LABEL` where the table has
  * a session column (the key the service's subject entries carry).
@@ -31,6 +14,7 @@ export function scanKey(r: Record<string, Cell>, idColumn: string): string {
   return scanId(id, session === null || session === undefined || session === '' ? null : String(session));
 }
 
+/** Rows as objects, column → value. */
 export function records(table: Table): Array<Record<string, Cell>> {
   return table.rows.map((r) => Object.fromEntries(table.columns.map((c, i) => [c, r[i] ?? null])));
 }

@@ -20,7 +20,8 @@ export interface RunningApp {
   close(): Promise<void>;
 }
 
-export async function startApp(): Promise<RunningApp> {
+/** `roots`: further folders the browser may read (e.g. a cohort a test generates). */
+export async function startApp(options: { roots?: string[] } = {}): Promise<RunningApp> {
   if (!existsSync(join(distDir, 'index.html'))) throw new Error('dist/ is missing: run npm run build first');
   const work = mkdtempSync(join(tmpdir(), 'loopwise-e2e-'));
   const outDir = join(work, 'out');
@@ -29,7 +30,7 @@ export async function startApp(): Promise<RunningApp> {
   const api = createLoopwiseService({ cacheDir: join(work, 'cache'), workers: 2 });
   const server = await startWebServer(api, {
     port: 0,
-    roots: [sampleRoot, outDir],
+    roots: [sampleRoot, outDir, ...(options.roots ?? [])],
     staticDir: distDir,
     sampleCohort,
     defaultOutDir: outDir,
