@@ -16,7 +16,7 @@
  * or a file that could not be written, makes it 'failed' (with the reason among the failures),
  * and the output folder stays unfinished so the same request resumes.
  */
-import { readFile } from 'node:fs/promises';
+import { readFile, rm } from 'node:fs/promises';
 import { join, resolve } from 'node:path';
 import { setInterval, clearInterval } from 'node:timers';
 import type {
@@ -181,6 +181,13 @@ export class LoopwiseService implements LoopwiseApi {
   async close(): Promise<void> {
     await this.pool?.terminate();
     this.pool = null;
+    // The tables runs without an output folder kept for export (CACHE/runs/…): runs live only as
+    // long as the session, so their copies go with it.
+    for (const s of this.runs.values()) {
+      if (s.request.outDir || !s.tables || s.status === 'running') continue;
+      await rm(s.tables.dir, { recursive: true, force: true }).catch(() => undefined);
+      s.tables = null;
+    }
   }
 
   private openSource(req: OpenCohortRequest, opts: SourceOptions = {}): Promise<CohortSource> {

@@ -83,9 +83,14 @@ describe('exportRun copies the run’s tables', () => {
     const direct = outputs(withFolder);
     expect(Object.keys(exported)).toEqual(Object.keys(direct));
     for (const name of Object.keys(direct)) {
-      if (name === 'provenance.json') continue;
+      if (name === 'provenance.json' || name === 'report.html') continue;
       expect(exported[name], name).toBe(direct[name]);
     }
+    // The kept copies go when the session ends (the run with an output folder keeps its own).
+    const kept = join(work, 'cache-b', 'runs');
+    expect(readdirSync(kept)).toHaveLength(1);
     await service.close();
+    expect(readdirSync(kept)).toEqual([]);
+    expect(visible(withFolder).length).toBeGreaterThan(0);
   });
 });
