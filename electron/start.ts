@@ -90,7 +90,12 @@ async function main(): Promise<void> {
     version: JSON.parse(readFileSync(join(repo, 'package.json'), 'utf8')).version,
   });
   console.log(`Loopwise is running at ${server.url}`);
-  const stop = () => void server.close().then(() => process.exit(0));
+  // api.close() also removes the tables the session's runs kept for export (CACHE/runs/).
+  const stop = () =>
+    void server
+      .close()
+      .then(() => api.close())
+      .then(() => process.exit(0));
   process.on('SIGINT', stop);
   process.on('SIGTERM', stop);
 }

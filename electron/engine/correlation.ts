@@ -1,10 +1,10 @@
 /**
- * From region time series to a correlation matrix, and correlation matrices to a group mean.
+ * From region time series to a correlation matrix (the group mean of correlation matrices, through
+ * Fisher's z, is features/group.ts GroupMeanAccumulator).
  *
  *   Pearson        r_ij = Σ_t (x_ti − x̄_i)(x_tj − x̄_j) / √(Σ_t (x_ti − x̄_i)² · Σ_t (x_tj − x̄_j)²)
  *   Ledoit–Wolf    the series are z-scored, their covariance S (÷T) is shrunk towards m·I, and the
  *                  result is scaled to a unit diagonal.
- *   Fisher z mean  tanh(mean_k atanh(r^k_ij)).
  *
  * A region whose series is constant has no correlation: its row and column are NaN (the QC report
  * names it as a dead region).
@@ -145,27 +145,4 @@ export function ledoitWolf(series: TimeSeries): { matrix: SquareMatrix; shrinkag
   const r = toCorrelation(shrunk, p, new Array<boolean>(p).fill(false));
   for (let a = 0; a < p; a++) for (let b = 0; b < p; b++) out[keep[a] * n + keep[b]] = r.values[a * p + b];
   return { matrix: { n, values: out }, shrinkage };
-}
-
-/**
- * The group mean of correlation matrices through Fisher's z (Fisher 1915; the variance-stabilising
- * transform of r): averages atanh(r) cell by cell and maps back with tanh. The diagonal is 1.
- * A NaN in any subject makes that cell NaN (drop dead regions first).
- *
- *   fisherMean([{n: 2, values: [1, 0.5, 0.5, 1]}, {n: 2, values: [1, 0.9, 0.9, 1]}]).values[1]
- *     → tanh((atanh 0.5 + atanh 0.9) / 2) ≈ 0.7661
- */
-export function fisherMean(matrices: SquareMatrix[]): SquareMatrix {
-  if (matrices.length === 0) throw new RangeError('fisherMean needs at least one matrix');
-  const n = matrices[0].n;
-  for (const m of matrices) {
-    if (m.n !== n) throw new RangeError(`fisherMean: matrices of different size (${n} and ${m.n})`);
-  }
-  const sum = new Float64Array(n * n);
-  for (const m of matrices) for (let k = 0; k < n * n; k++) sum[k] += Math.atanh(m.values[k]);
-  const values = new Float64Array(n * n);
-  for (let i = 0; i < n; i++) {
-    for (let j = 0; j < n; j++) values[i * n + j] = i === j ? 1 : Math.tanh(sum[i * n + j] / matrices.length);
-  }
-  return { n, values };
 }

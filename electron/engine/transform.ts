@@ -183,3 +183,17 @@ export function pairIndex(i: number, j: number): number {
 export function distancesFromRows(rows: number[][]): DistanceMatrix {
   return toDistances(squareMatrix(rows), { input: 'distance' });
 }
+
+/** The matrix without the rows and columns in `drop`, and the original index of each kept region. */
+export function dropRegions(m: SquareMatrix, drop: number[]): { matrix: SquareMatrix; kept: Int32Array } {
+  const dropSet = new Set(drop.filter((r) => r < m.n));
+  const keptList: number[] = [];
+  for (let i = 0; i < m.n; i++) if (!dropSet.has(i)) keptList.push(i);
+  const kept = Int32Array.from(keptList);
+  if (kept.length === m.n) return { matrix: m, kept };
+  const k = kept.length;
+  const values = new Float64Array(k * k);
+  for (let a = 0; a < k; a++)
+    for (let b = 0; b < k; b++) values[a * k + b] = m.values[kept[a] * m.n + kept[b]];
+  return { matrix: { n: k, values }, kept };
+}

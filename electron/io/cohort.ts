@@ -38,6 +38,7 @@ import type {
   SubjectEntry,
 } from '../api.ts';
 import { ledoitWolf, pearson } from '../engine/correlation.ts';
+import { dropRegions } from '../engine/transform.ts';
 import type { InputKind } from '../engine/transform.ts';
 import type { SquareMatrix } from '../engine/types.ts';
 import type { Matrix2D } from './array.ts';
@@ -1073,18 +1074,6 @@ function detail(e: unknown): string {
   return e instanceof Error ? e.message : String(e);
 }
 
-/** The matrix without the given regions (rows and columns). */
-export function dropRegions(m: SquareMatrix, drop: number[]): SquareMatrix {
-  if (drop.length === 0) return m;
-  const gone = new Set(drop);
-  const keep = [...Array(m.n).keys()].filter((i) => !gone.has(i));
-  const k = keep.length;
-  const values = new Float64Array(k * k);
-  for (let a = 0; a < k; a++)
-    for (let b = 0; b < k; b++) values[a * k + b] = m.values[keep[a] * m.n + keep[b]];
-  return { n: k, values };
-}
-
 /**
  * A .mat stack can only be read whole (its values may be compressed), so the last one read is
  * kept for the next subject: loading a stack cohort subject by subject reads the file once, not
@@ -1145,5 +1134,5 @@ export async function loadSubjectMatrix(
       throw new InputFileError(file, `not square: ${m.rows} rows × ${m.cols} columns`, 'not-square');
     matrix = { n: m.rows, values: m.values };
   }
-  return dropRegions(matrix, options.dropRegions ?? []);
+  return dropRegions(matrix, options.dropRegions ?? []).matrix;
 }

@@ -4,31 +4,15 @@
  * run's commit log: a run killed at any moment resumes by reusing every entry present.
  * The folder is the user's to inspect and delete; README.txt inside says so.
  */
-import { mkdir, readFile, readdir, stat } from 'node:fs/promises';
+import { mkdir, readdir, stat } from 'node:fs/promises';
 import { join } from 'node:path';
 import { cachePath } from '../shared/cache-key.ts';
+import { readCachedFiltration } from '../shared/filtration-record.ts';
+import type { CachedFiltration } from '../shared/filtration-record.ts';
 import { removeStaleTemps, writeFileAtomic } from './atomic.ts';
 
-/** Bumped when the entries' layout changes, so older entries are recomputed rather than misread. */
-export const CACHE_FORMAT = 2;
-
-/** One subject's filtration as cached. Node indices refer to the subject's matrix as read (before dropRegions). */
-export interface CachedFiltration {
-  format: typeof CACHE_FORMAT;
-  key: string;
-  engineVersion: string;
-  matrixSha256: string;
-  /** Regions analysed (after dropRegions). */
-  n: number;
-  threshold: number | null;
-  thresholdSource: string;
-  /** diagrams[d] = [[birth, death | null], …], sorted by birth then death. */
-  diagrams: Array<Array<[number, number | null]>>;
-  /** Aligned with diagrams[1] when representatives were asked for, else null. */
-  representatives: Array<{ nodes: number[]; edges: Array<[number, number]> }> | null;
-  /** The H0 merge tree in filtration order: [value, edge i, edge j, survivor, absorbed] (see MergeEvent). */
-  mergeTree: Array<[number, number, number, number, number]>;
-}
+export { CACHE_FORMAT } from '../shared/filtration-record.ts';
+export type { CachedFiltration } from '../shared/filtration-record.ts';
 
 const README = `This folder holds Loopwise's cached filtrations: one file per subject matrix and
 filtration setting. A run reuses them instead of recomputing, and an interrupted run resumes
@@ -58,18 +42,7 @@ export class FiltrationCache {
 
   /** The entry, or null when absent or unreadable (then it is simply recomputed). */
   async get(key: string): Promise<CachedFiltration | null> {
-    let text: string;
-    try {
-      text = await readFile(this.pathOf(key), 'utf8');
-    } catch {
-      return null;
-    }
-    try {
-      const e = JSON.parse(text) as CachedFiltration;
-      return e.format === CACHE_FORMAT && e.key === key && Array.isArray(e.diagrams) ? e : null;
-    } catch {
-      return null;
-    }
+    return readCachedFiltration(this.pathOf(key), key);
   }
 
   async put(entry: CachedFiltration): Promise<void> {

@@ -15,7 +15,7 @@ import type {
   SubjectEntry,
 } from '../api.ts';
 import { subjectCurves } from '../engine/features/curves.ts';
-import { subjectNodeScores } from '../engine/features/rows.ts';
+import { maskDroppedRegions, subjectNodeScores } from '../engine/features/rows.ts';
 import {
   diagramDistances,
   matchCycles,
@@ -28,7 +28,8 @@ import { toDistances } from '../engine/transform.ts';
 import type { DistanceMatrix, PersistenceResult } from '../engine/types.ts';
 import { dropRegions } from '../workers/filtration.ts';
 import type { RunView } from './results.ts';
-import { groupingColumn, keptRegions, maskDropped, resultFromCache } from './stages.ts';
+import { resultFromCache } from '../shared/filtration-record.ts';
+import { groupingColumn } from './stages.ts';
 
 /** A comparison the run cannot answer (an unknown scan or group, a run without results): a bad request. */
 export class ComparisonError extends Error {
@@ -126,11 +127,7 @@ async function resolveSide(s: RunView, side: ComparisonSide, grid: number[]): Pr
   const result = resultFromCache(cached, nRead);
   const entry = s.report.subjects[rec.index];
   const distances = await scanDistances(s, entry);
-  const scores = maskDropped(
-    subjectNodeScores(result, settings),
-    keptRegions(nRead, settings.dropRegions),
-    nRead,
-  );
+  const scores = maskDroppedRegions(subjectNodeScores(result, settings), settings.dropRegions);
   const col = groupingColumn(s.report, s.run!.stats);
   const g = col ? entry.covariates[col] : null;
   return {

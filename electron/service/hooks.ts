@@ -24,6 +24,8 @@ import type {
 } from '../api.ts';
 import type { DistanceMatrix, SquareMatrix } from '../engine/types.ts';
 import type { CachedFiltration } from './cache.ts';
+import type { SubjectFeatures } from '../workers/filtration.ts';
+import type { GroupMeansGatherer } from './stages.ts';
 import type { RunRecords, SubjectRecord, TableFormat } from './tables.ts';
 
 export interface StageContext {
@@ -36,6 +38,13 @@ export interface StageContext {
   analysed: SubjectRecord[];
   /** One subject's cached filtration. */
   filtration(record: SubjectRecord): Promise<CachedFiltration>;
+  /**
+   * The subject's features its worker computed from the read of its matrix in stage (1), once
+   * (null when it did not, e.g. after a merge, or when already taken).
+   */
+  takeFeatures?(record: SubjectRecord): SubjectFeatures | null;
+  /** The group means gathered from the workers' reads in stage (1), when the run groups its subjects. */
+  groupMeans?: GroupMeansGatherer | null;
   /** One subject's matrix as read (null when the cohort's files are not reachable, e.g. a merge elsewhere). */
   matrix(entry: SubjectEntry): Promise<SquareMatrix | null>;
   /** Writes a table into the output folder (when there is one) as NAME.tsv or NAME.csv; returns the file name or null. */

@@ -10,15 +10,19 @@ import { relative, sep } from 'node:path';
 import type { AnalysisSettings, CohortReport, SubjectEntry } from '../api.ts';
 import { FiltrationError } from '../workers/pool.ts';
 import type { WorkerPool } from '../workers/pool.ts';
-import type { PackedFiltration, WorkerReply } from '../workers/filtration.ts';
-import { CACHE_FORMAT } from './cache.ts';
-import type { CachedFiltration, FiltrationCache } from './cache.ts';
+import { unpack } from '../workers/filtration.ts';
+import type {
+  FeatureTaskSettings,
+  PackedFiltration,
+  SubjectFeatures,
+  WorkerReply,
+} from '../workers/filtration.ts';
+import type { FiltrationCache } from './cache.ts';
 import type { CohortSource } from './cohort-source.ts';
 import { sha256File, sha256Matrix } from '../shared/hash.ts';
 import { filtrationKey } from './settings.ts';
 import { findingText } from './tables.ts';
 import type { SubjectRecord } from './tables.ts';
-import { ENGINE_VERSION } from '../engine/version.ts';
 
 /** Counts of work actually done, for tests and the summary (never timings). */
 export interface ServiceCounters {
@@ -34,6 +38,8 @@ export interface SubjectOutcome {
   record: SubjectRecord;
   reused: boolean;
   computed: boolean;
+  /** The subject's features, when its worker computed them from the read of its matrix. */
+  features?: SubjectFeatures;
 }
 
 export interface FiltrationStageOptions {
@@ -47,45 +53,13 @@ export interface FiltrationStageOptions {
   window?: number;
   counters: ServiceCounters;
   cancelled(): boolean;
+  /**
+   * Have each worker also compute its subject's features from the same read (not for a shard: its
+   * features are computed after the merge). Only where the workers read the files themselves.
+   */
+  features?: FeatureTaskSettings;
   onStart?(entry: SubjectEntry): void;
   onOutcome(o: SubjectOutcome): void;
-}
-
-export function unpack(p: PackedFiltration, key: string, matrixSha256: string): CachedFiltration {
-  const diagrams = p.births.map((b, d) =>
-    Array.from(b, (birth, k): [number, number | null] => {
-      const death = p.deaths[d][k];
-      return [birth, Number.isFinite(death) ? death : null];
-    }),
-  );
-  let representatives: CachedFiltration['representatives'] = null;
-  if (p.repNodeStart && p.repNodes && p.repEdgeStart && p.repEdges) {
-    representatives = [];
-    for (let k = 0; k + 1 < p.repNodeStart.length; k++) {
-      const nodes = Array.from(p.repNodes.subarray(p.repNodeStart[k], p.repNodeStart[k + 1]));
-      const edges: Array<[number, number]> = [];
-      for (let t = p.repEdgeStart[k]; t < p.repEdgeStart[k + 1]; t++)
-        edges.push([p.repEdges[2 * t], p.repEdges[2 * t + 1]]);
-      representatives.push({ nodes, edges });
-    }
-  }
-  const mergeTree: CachedFiltration['mergeTree'] = [];
-  for (let k = 0; k < p.mergeTree.length; k += 5) {
-    const t = p.mergeTree;
-    mergeTree.push([t[k], t[k + 1], t[k + 2], t[k + 3], t[k + 4]]);
-  }
-  return {
-    format: CACHE_FORMAT,
-    key,
-    engineVersion: ENGINE_VERSION,
-    matrixSha256,
-    n: p.n,
-    threshold: Number.isFinite(p.threshold) ? p.threshold : null,
-    thresholdSource: p.thresholdSource,
-    diagrams,
-    representatives,
-    mergeTree,
-  };
 }
 
 /** The reason the cohort check excluded a subject, from its error findings. */
@@ -132,9 +106,14 @@ export async function runFiltrationStage(opts: FiltrationStageOptions): Promise<
       ...(entry.source.variable !== undefined ? { variable: entry.source.variable } : {}),
       ...(entry.source.stackIndex !== undefined ? { stackIndex: entry.source.stackIndex } : {}),
     };
-    const finish = (record: SubjectRecord, reused: boolean, computed: boolean): void => {
+    const finish = (
+      record: SubjectRecord,
+      reused: boolean,
+      computed: boolean,
+      features?: SubjectFeatures,
+    ): void => {
       out.set(index, record);
-      opts.onOutcome({ record, reused, computed });
+      opts.onOutcome({ record, reused, computed, ...(features ? { features } : {}) });
     };
     if (!entry.usable) {
       finish({ ...base, status: 'excluded', reason: exclusionReason(report, entry.id) }, false, false);
@@ -150,10 +129,15 @@ export async function runFiltrationStage(opts: FiltrationStageOptions): Promise<
       const reason = e instanceof FiltrationError ? e.message : e instanceof Error ? e.message : String(e);
       finish({ ...base, matrixSha256, reason }, false, false);
     };
-    const commit = async (packed: PackedFiltration, key: string, matrixSha256: string): Promise<void> => {
+    const commit = async (
+      packed: PackedFiltration,
+      key: string,
+      matrixSha256: string,
+      features?: SubjectFeatures,
+    ): Promise<void> => {
       counters.filtrations++;
       await cache.put(unpack(packed, key, matrixSha256));
-      finish({ ...base, status: 'analysed', key, matrixSha256 }, false, true);
+      finish({ ...base, status: 'analysed', key, matrixSha256 }, false, true, features);
     };
     const filtration = {
       input: settings.input,
@@ -178,6 +162,7 @@ export async function runFiltrationStage(opts: FiltrationStageOptions): Promise<
             cacheDir: cache.dir,
             recompute,
             hashFile: workerHashes,
+            ...(opts.features ? { features: opts.features } : {}),
           });
           counters.loads++;
           if (workerHashes) base.fileSha256 = reply.fileSha256 ?? null;
@@ -186,16 +171,18 @@ export async function runFiltrationStage(opts: FiltrationStageOptions): Promise<
           return;
         }
         if (reply.kind === 'computed') {
-          await commit(reply.result, reply.key as string, reply.matrixSha256 as string);
+          await commit(reply.result, reply.key as string, reply.matrixSha256 as string, reply.features);
           return;
         }
         // An entry the worker saw but this thread cannot use (another cache format): recompute it.
-        if (await cache.get(reply.key)) {
+        // (A worker that computed features from the entry has read it as this thread would.)
+        if (reply.features || (await cache.get(reply.key))) {
           counters.reused++;
           finish(
             { ...base, status: 'analysed', key: reply.key, matrixSha256: reply.matrixSha256 },
             true,
             false,
+            reply.features,
           );
           return;
         }

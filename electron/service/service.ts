@@ -16,6 +16,7 @@
  * or a file that could not be written, makes it 'failed' (with the reason among the failures),
  * and the output folder stays unfinished so the same request resumes.
  */
+import { readFile, rm } from 'node:fs/promises';
 import { join, resolve } from 'node:path';
 import { setInterval, clearInterval } from 'node:timers';
 import type {
@@ -65,9 +66,11 @@ import {
 import { ComparisonError, compareSides } from './compare.ts';
 import { REPORT_FILE, buildReport } from './report.ts';
 import { makeStageContext } from './stage-context.ts';
-import { cohortStages } from './stages.ts';
+import { GroupMeansGatherer, cohortStages } from './stages.ts';
 import { runFiltrationStage } from './pipeline.ts';
 import type { ServiceCounters } from './pipeline.ts';
+import { featureTaskSettings } from '../workers/filtration.ts';
+import type { SubjectFeatures } from '../workers/filtration.ts';
 import {
   checkSettings,
   defaultAnalysisSettings,
@@ -120,6 +123,15 @@ interface RunState {
   run: RunRecords | null;
   provenance: Provenance | null;
   results: StageOutput;
+  /**
+   * Where the run's finished tables are, and their names: its output folder, or for a run without
+   * one (the app's) a folder of its own under the cache (CACHE/runs/). exportRun copies them.
+   */
+  tables: { dir: string; files: string[] } | null;
+  /** Subjects' features computed by their workers in stage (1), taken by the features stage. */
+  subjectFeatures: Map<string, SubjectFeatures>;
+  /** The group means gathered from the workers' reads in stage (1) (null when nothing is grouped). */
+  groupMeans: GroupMeansGatherer | null;
   /** Stages (2)–(4) that failed: the run keeps what came before (e.g. features without statistics). */
   stageFailures: Array<{ subject: string; reason: string }>;
   summary: RunSummary | null;
@@ -147,6 +159,9 @@ function newRunState(
     pool: null,
     provenance: null,
     results: {},
+    tables: null,
+    subjectFeatures: new Map(),
+    groupMeans: null,
     stageFailures: [],
     summary: null,
     done: Promise.resolve(null as unknown as RunSummary),
@@ -177,6 +192,13 @@ export class LoopwiseService implements LoopwiseApi {
   async close(): Promise<void> {
     await this.pool?.terminate();
     this.pool = null;
+    // The tables runs without an output folder kept for export (CACHE/runs/…): runs live only as
+    // long as the session, so their copies go with it.
+    for (const s of this.runs.values()) {
+      if (s.request.outDir || !s.tables || s.status === 'running') continue;
+      await rm(s.tables.dir, { recursive: true, force: true }).catch(() => undefined);
+      s.tables = null;
+    }
   }
 
   private openSource(req: OpenCohortRequest, opts: SourceOptions = {}): Promise<CohortSource> {
@@ -261,6 +283,18 @@ export class LoopwiseService implements LoopwiseApi {
       throw e;
     }
     const runId = `run-${this.nextRun++}`;
+    // A run without an output folder keeps its tables in one of its own under the cache, so that
+    // exporting it copies them instead of computing them again.
+    const own =
+      folder ??
+      (req.shard
+        ? null
+        : await openRunFolder(
+            join(cache.dir, 'runs', `${process.pid}-${runId}-${Date.now().toString(36)}`),
+            req,
+            format,
+            true,
+          ).catch(() => null));
     const state = newRunState({
       runId,
       request: { ...req, outDir },
@@ -268,7 +302,7 @@ export class LoopwiseService implements LoopwiseApi {
       report: source.report,
       cache,
       run: null,
-      folder,
+      folder: own,
       startedAt: this.now().toISOString(),
     });
     this.runs.set(runId, state);
@@ -359,6 +393,7 @@ export class LoopwiseService implements LoopwiseApi {
     try {
       const pool = this.poolOfSize(req.workers ?? this.options.workers ?? defaultPoolSize());
       state.pool = pool;
+      if (!req.shard) state.groupMeans = GroupMeansGatherer.for(report, req.stats, req.settings, share);
       progress('filtrations', 0, share.length);
       let records: Map<number, SubjectRecord>;
       try {
@@ -370,11 +405,28 @@ export class LoopwiseService implements LoopwiseApi {
           share,
           counters: this.counters,
           cancelled: () => state.cancelRequested,
+          ...(req.shard
+            ? {}
+            : { features: { ...featureTaskSettings(req.settings), keepMatrix: state.groupMeans !== null } }),
           onStart: (entry) => {
             current = entry.id;
             computeStart ??= performance.now();
           },
-          onOutcome: ({ record, reused: r, computed: c }) => {
+          onOutcome: ({ record, reused: r, computed: c, features }) => {
+            if (features?.matrix) {
+              const values = features.matrix;
+              delete features.matrix;
+              state.groupMeans?.offer(record.index, {
+                id: record.id,
+                matrix: { n: Math.round(Math.sqrt(values.length)), values },
+              });
+            } else {
+              state.groupMeans?.offer(
+                record.index,
+                record.status === 'analysed' ? { id: record.id, matrix: null } : null,
+              );
+            }
+            if (features) state.subjectFeatures.set(record.id, features);
             done++;
             if (r) reused++;
             if (c) computed++;
@@ -422,7 +474,9 @@ export class LoopwiseService implements LoopwiseApi {
         unmatched: unmatchedParticipants(report),
       };
       for (const u of state.run.unmatched ?? []) excluded.push({ subject: u.id, reason: u.reason });
-      const files = await this.finish(state, state.folder, format);
+      const written = await this.finish(state, state.folder, format);
+      // A run without an output folder wrote only into its own (see `tables`).
+      const files = req.outDir ? written : [];
       failures.push(...state.stageFailures);
       if (state.cancelRequested) return await finishSummary('cancelled', files);
       return await finishSummary(state.stageFailures.length > 0 ? 'failed' : 'done', files);
@@ -470,6 +524,8 @@ export class LoopwiseService implements LoopwiseApi {
       format,
       emit,
       cancelled: () => state.cancelRequested,
+      subjectFeatures: state.subjectFeatures,
+      groupMeans: state.groupMeans,
       workers: this.pool?.size ?? this.options.workers ?? defaultPoolSize(),
     });
     for (const stage of ['groupFiltrations', 'features', 'statistics'] as const) {
@@ -484,6 +540,7 @@ export class LoopwiseService implements LoopwiseApi {
         state.stageFailures.push({ subject: `(${stage})`, reason: reasonOf(e) });
       }
     }
+    state.groupMeans = null; // used by the group stage; its sums are done with
     const grid = (state.results as { grid?: number[] }).grid;
     if (grid && state.provenance) {
       // The grid is known only once the features stage has seen the cohort: record it too.
@@ -501,6 +558,7 @@ export class LoopwiseService implements LoopwiseApi {
       // A run whose stage failed writes no report: its results are incomplete, and say so in its summary.
       if (state.stageFailures.length === 0) await this.writeReport(state, folder);
       await folder.finish(state.stageFailures.length > 0 ? 'failed' : 'complete');
+      state.tables = { dir: folder.dir, files: folder.files() };
     }
     return folder ? folder.files() : [];
   }
@@ -685,6 +743,11 @@ export class LoopwiseService implements LoopwiseApi {
     if (s.exporting)
       throw new RunStateError(`run ${runId} is being exported already: wait until that export ends`);
     const dir = resolve(outDir);
+    const tables = s.tables;
+    if (!tables)
+      throw new RunStateError(
+        `run ${runId} kept no tables to export (no folder of its own could be made under ${s.cache.dir}); run it again with an output folder`,
+      );
     const format = s.request.tableFormat ?? 'tsv';
     // The export's progress is its own phase: a client never takes it for the run's stages.
     const started = performance.now();
@@ -713,14 +776,16 @@ export class LoopwiseService implements LoopwiseApi {
       });
       this.emit(begin);
       try {
-        const files = await this.finish(s, folder, format, (e) =>
-          this.emit(exportEvent(e.message ? `${e.phase}: ${e.message}` : e.phase, e.done, e.total, e.etaMs)),
-        );
-        if (s.stageFailures.length > 0)
-          throw new Error(
-            `the export to ${dir} is incomplete: ${s.stageFailures.map((f) => `${f.subject} ${f.reason}`).join('; ')}`,
-          );
-        return { files };
+        // The run's own files, byte for byte: nothing is computed again. One event per file.
+        let done = 0;
+        for (const name of tables.files) {
+          this.emit(exportEvent(name, done, tables.files.length, null));
+          await folder.writeFile(name, await readFile(join(tables.dir, name)));
+          done++;
+        }
+        await folder.finish('complete');
+        this.emit(exportEvent('written', done, tables.files.length, 0));
+        return { files: folder.files() };
       } finally {
         await folder.release();
       }

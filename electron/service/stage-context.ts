@@ -7,6 +7,8 @@ import type { CohortReport, ProgressEvent } from '../api.ts';
 import type { FiltrationCache } from './cache.ts';
 import type { CohortSource } from './cohort-source.ts';
 import type { StageContext } from './hooks.ts';
+import type { SubjectFeatures } from '../workers/filtration.ts';
+import type { GroupMeansGatherer } from './stages.ts';
 import type { OutputFolder } from './outdir.ts';
 import { tableLine } from './tables.ts';
 import type { RunRecords, TableFormat } from './tables.ts';
@@ -24,6 +26,10 @@ export interface StageContextParts {
   cancelled(): boolean;
   /** Worker threads the run may use (the statistics stage runs on as many). */
   workers?: number;
+  /** Subjects' features computed by their workers in stage (1) (taken once each by the features stage). */
+  subjectFeatures?: Map<string, SubjectFeatures>;
+  /** Group means gathered in stage (1) (stages.ts GroupMeansGatherer). */
+  groupMeans?: GroupMeansGatherer | null;
 }
 
 export function makeStageContext(p: StageContextParts): StageContext {
@@ -40,6 +46,12 @@ export function makeStageContext(p: StageContextParts): StageContext {
       return e;
     },
     matrix: async (entry) => (p.source ? p.source.load(entry) : null),
+    groupMeans: p.groupMeans ?? null,
+    takeFeatures: (record) => {
+      const f = p.subjectFeatures?.get(record.id) ?? null;
+      p.subjectFeatures?.delete(record.id);
+      return f;
+    },
     writeTable: async (name, table) => {
       if (!folder) return null;
       const file = `${name}.${format}`;

@@ -27,16 +27,15 @@ import type {
 import {
   curveBands,
   featureTable,
-  filtrationEnd,
-  grid,
+  GridRange,
+  GroupMeanAccumulator,
+  maskDroppedRegions,
   networkScoreTable,
   nodeScoreTable,
-  subjectCurves,
-  subjectFeatureRow,
   subjectNodeScores,
+  subjectOnGrid,
 } from '../engine/features/index.ts';
 import type { FeatureRow } from '../engine/features/index.ts';
-import { computePersistence } from '../engine/persistence.ts';
 import { wholeDiagramMetric } from '../engine/stats/compare.ts';
 import { buildDesign } from '../engine/stats/design.ts';
 import { designGroupColumn } from '../contract.ts';
@@ -50,39 +49,13 @@ import type { FamilyFeature, FamilyResult, FeatureFamily } from '../engine/stats
 import { finishPermutationTest, preparePermutationTest } from '../engine/stats/permutation.ts';
 import { diagramTestsTable, statsTable } from '../engine/stats/tables.ts';
 import type { DiagramTestEntry } from '../engine/stats/tables.ts';
-import { toDistances } from '../engine/transform.ts';
-import type { DistanceMatrix, PersistenceResult, SquareMatrix } from '../engine/types.ts';
-import { dropRegions } from '../workers/filtration.ts';
+import type { DistanceMatrix, SquareMatrix } from '../engine/types.ts';
+import { resultFromCache } from '../shared/filtration-record.ts';
+import { featureTaskSettings, filtrationAsRead, subjectFeatures } from '../workers/filtration.ts';
+import type { SubjectFeatures } from '../workers/filtration.ts';
 import { distanceRowRanges } from '../workers/statistics.ts';
 import { StatisticsPool } from '../workers/statistics-pool.ts';
-import type { CachedFiltration } from './cache.ts';
 import type { RunHooks, StageContext, StageOutput } from './hooks.ts';
-
-/** The engine's result type from a cached filtration, node indices in the matrix as read. */
-export function resultFromCache(c: CachedFiltration, nRead: number): PersistenceResult {
-  const diagrams = c.diagrams.map((dg) => dg.map(([b, d]) => ({ birth: b, death: d ?? Infinity })));
-  return {
-    n: nRead,
-    threshold: c.threshold ?? Infinity,
-    thresholdSource: c.thresholdSource as PersistenceResult['thresholdSource'],
-    diagrams,
-    representatives: c.representatives
-      ? c.representatives.map((r, k) => ({
-          birth: diagrams[1][k].birth,
-          death: diagrams[1][k].death,
-          edges: r.edges,
-          nodes: r.nodes,
-        }))
-      : undefined,
-    mergeTree: (c.mergeTree ?? []).map(([value, i, j, survivor, absorbed]) => ({
-      value,
-      edge: [i, j] as [number, number],
-      survivor,
-      absorbed,
-    })),
-    counts: { edges: 0, columnsReduced: [], apparentPairs: [] },
-  };
-}
 
 const GROUP_SEED_OFFSET = 7919; // bootstrap bands use seed + offset, so they do not reuse the permutation stream
 
@@ -137,21 +110,17 @@ export function cohortStages(): RunHooks {
       for (const [g, entries] of [...groups].sort((a, b) => a[0].localeCompare(b[0]))) {
         if (ctx.cancelled()) break;
         ctx.progress('group-filtrations', done, groups.size, `group ${g}`);
-        const mean = await streamingGroupMean(ctx, entries, settings.input === 'correlation');
+        const gathered = ctx.groupMeans?.complete(g, entries.length);
+        const mean = gathered
+          ? gathered.mean()
+          : await streamingGroupMean(ctx, entries, settings.input === 'correlation');
         if (!mean) continue;
-        const { matrix, kept } = dropRegions(mean, settings.dropRegions);
-        const distances = toDistances(matrix, { input: settings.input, transform: settings.transform });
-        const r = computePersistence(distances, {
-          maxDim: settings.maxDim,
-          cap: settings.cap,
-          representatives: settings.representatives,
-        });
-        const mapped = mapToRead(r, kept, mean.n);
+        const { result: mapped, distances } = filtrationAsRead(mean, settings);
         const diagrams = mapped.diagrams.map((dg) =>
           dg.map((iv) => [iv.birth, Number.isFinite(iv.death) ? iv.death : null] as [number, number | null]),
         );
         groupDiagrams.push({ group: g, diagrams });
-        const scores = maskDropped(subjectNodeScores(mapped, settings), kept, mean.n);
+        const scores = maskDroppedRegions(subjectNodeScores(mapped, settings), settings.dropRegions);
         groupFiltrations.push({
           group: g,
           scans: entries.length,
@@ -191,19 +160,25 @@ export function cohortStages(): RunHooks {
     async features(ctx) {
       const settings = ctx.run.settings;
       const nRead = ctx.report.n ?? 0;
-      // Pass 1: the cohort grid (the cohort's filtration range unless the user set one).
-      let lo = Infinity;
-      let hi = -Infinity;
-      for (const rec of ctx.analysed) {
-        const r = resultFromCache(await ctx.filtration(rec), nRead);
-        if (r.mergeTree.length > 0) lo = Math.min(lo, r.mergeTree[0].value);
-        hi = Math.max(hi, filtrationEnd(r));
+      // Pass 1: each subject's features as its worker computed them from the one read of its
+      // matrix (computed here, from one read, when it did not: after a merge, or from a source
+      // read on this thread), and the cohort grid (the cohort's filtration range unless the user set one).
+      const fset = featureTaskSettings(settings);
+      const perSubject: SubjectFeatures[] = [];
+      const range = new GridRange();
+      for (const [k, rec] of ctx.analysed.entries()) {
+        if (ctx.cancelled()) return {};
+        let f: SubjectFeatures | null = ctx.takeFeatures?.(rec) ?? null;
+        if (!f) {
+          ctx.progress('features', k, ctx.analysed.length, rec.id);
+          const entry = entryOf(ctx, rec.id);
+          const m = entry ? await ctx.matrix(entry) : null;
+          f = subjectFeatures(await ctx.filtration(rec), m, nRead, settings, fset);
+        }
+        perSubject.push(f);
+        range.add(f.summary.first, f.summary.end);
       }
-      if (!Number.isFinite(lo)) lo = 0;
-      if (!Number.isFinite(hi)) hi = lo;
-      gridValues = settings.gridRange
-        ? grid(settings.gridRange[0], settings.gridRange[1], settings.gridPoints)
-        : grid(lo, hi, settings.gridPoints);
+      gridValues = range.grid(settings);
 
       // Pass 2: one subject at a time. The long tables go to disk row by row; what the statistics
       // need (scalar features, node scores, curves) stays in memory as plain numbers.
@@ -246,16 +221,13 @@ export function cohortStages(): RunHooks {
           }
           ctx.progress('features', done, ctx.analysed.length, rec.id);
           const cached = await ctx.filtration(rec);
-          const r = resultFromCache(cached, nRead);
           diagramsBySubject.push(cached.diagrams);
-          const entry = entryOf(ctx, rec.id);
-          const distances = entry ? await subjectDistances(ctx, entry) : null;
-          featureRows.push({
-            subject: rec.id,
-            features: subjectFeatureRow(r, gridValues, settings, distances ?? undefined),
-          });
-          const kept = keptRegions(nRead, settings.dropRegions);
-          const scores = maskDropped(subjectNodeScores(r, settings), kept, nRead);
+          const f = perSubject[done];
+          const { features: row, curves } =
+            f.onGrid ?? subjectOnGrid(f.summary, resultFromCache(cached, nRead), gridValues, settings);
+          f.summary.euler = null; // the simplex events are done with
+          featureRows.push({ subject: rec.id, features: row });
+          const scores = f.summary.nodeScores;
           nodeScores.push({ subject: rec.id, scores });
           const cells = scanCells(ctx, rec.id);
           for (const scored of nodeScoreTable([{ subject: rec.id, scores }], ctx.report.nodes).rows) {
@@ -268,7 +240,6 @@ export function cohortStages(): RunHooks {
               await networksSink.row([...cells, ...row.slice(1)]);
             }
           }
-          const curves = subjectCurves(r, gridValues, settings, distances ?? undefined);
           curveRows.push({ subject: rec.id, curves });
           for (const [name, values] of Object.entries(curves)) {
             const dim = curveDimension(name);
@@ -559,89 +530,91 @@ export function groupingColumn(report: CohortReport, stats: StatsSettings): stri
   );
 }
 
-/** The subject's distances as the filtration saw them (regions dropped, transform applied), or null when unreadable. */
-async function subjectDistances(ctx: StageContext, entry: SubjectEntry): Promise<DistanceMatrix | null> {
-  const m = await ctx.matrix(entry);
-  if (!m) return null;
-  const s = ctx.run.settings;
-  try {
-    return toDistances(dropRegions(m, s.dropRegions).matrix, { input: s.input, transform: s.transform });
-  } catch {
-    return null;
+/**
+ * The group-mean matrices of the group filtrations, gathered while stage (1) runs from the
+ * matrices its workers read (so each file is read once): each analysed subject's matrix is added
+ * to its group's GroupMeanAccumulator in cohort order (a subject that finishes early waits in a
+ * buffer, bounded by the subjects in flight), so the sums are exactly those of reading the
+ * subjects in order afterwards. A group whose subjects did not all come is read by the stage.
+ */
+export class GroupMeansGatherer {
+  readonly means = new Map<string, GroupMeanAccumulator>();
+  private readonly column: string;
+  private readonly byId: Map<string, SubjectEntry>;
+  private readonly kind: 'correlation' | 'plain';
+  private readonly order: number[];
+  private pos = 0;
+  private readonly waiting = new Map<number, { id: string; matrix: SquareMatrix | null } | null>();
+  private broken = new Set<string>();
+
+  /** Null when the run groups no subjects (no grouping column). */
+  static for(
+    report: CohortReport,
+    stats: StatsSettings,
+    settings: { input: string },
+    share: number[],
+  ): GroupMeansGatherer | null {
+    const column = groupingColumn(report, stats);
+    return column ? new GroupMeansGatherer(report, column, settings.input, share) : null;
+  }
+
+  private constructor(report: CohortReport, column: string, input: string, share: number[]) {
+    this.column = column;
+    this.byId = new Map(report.subjects.map((x) => [x.id, x]));
+    this.kind = input === 'correlation' ? 'correlation' : 'plain';
+    this.order = share;
+  }
+
+  /** A subject's outcome in stage (1): analysed (id) with its matrix as read, or not analysed (null). */
+  offer(index: number, subject: { id: string; matrix: SquareMatrix | null } | null): void {
+    this.waiting.set(index, subject);
+    while (this.pos < this.order.length && this.waiting.has(this.order[this.pos])) {
+      const next = this.waiting.get(this.order[this.pos]);
+      this.waiting.delete(this.order[this.pos]);
+      this.pos++;
+      if (next) this.add(next.id, next.matrix);
+    }
+  }
+
+  /** The group's accumulated mean input, when every one of its `subjects` was added. */
+  complete(group: string, subjects: number): GroupMeanAccumulator | null {
+    const acc = this.means.get(group);
+    return acc && !this.broken.has(group) && acc.count === subjects ? acc : null;
+  }
+
+  private add(id: string, m: SquareMatrix | null): void {
+    const v = this.byId.get(id)?.covariates[this.column];
+    if (v === null || v === undefined) return;
+    const g = String(v);
+    if (!m) {
+      this.broken.add(g);
+      return;
+    }
+    let acc = this.means.get(g);
+    if (!acc) this.means.set(g, (acc = new GroupMeanAccumulator(this.kind)));
+    if (acc.size >= 0 && m.n !== acc.size) return;
+    try {
+      acc.add(m);
+    } catch {
+      this.broken.add(g);
+    }
   }
 }
 
-/** Fisher-z (or plain) mean of a group's matrices, reading one subject at a time. */
+/** Fisher-z (or plain) mean of a group's matrices (GroupMeanAccumulator), reading one subject at a time. */
 async function streamingGroupMean(
   ctx: StageContext,
   entries: SubjectEntry[],
   fisher: boolean,
 ): Promise<SquareMatrix | null> {
-  let sum: Float64Array | null = null;
-  let count: Float64Array | null = null;
-  let n = 0;
-  const CLAMP = 1 - 1e-12;
+  const acc = new GroupMeanAccumulator(fisher ? 'correlation' : 'plain');
   for (const e of entries) {
     const m = await ctx.matrix(e);
     if (!m) continue;
-    if (!sum) {
-      n = m.n;
-      sum = new Float64Array(n * n);
-      count = new Float64Array(n * n);
-    }
-    if (m.n !== n) continue;
-    for (let k = 0; k < n * n; k++) {
-      const v = m.values[k];
-      if (!Number.isFinite(v)) continue;
-      sum[k] += fisher ? Math.atanh(Math.max(-CLAMP, Math.min(CLAMP, v))) : v;
-      count![k]++;
-    }
+    if (acc.size >= 0 && m.n !== acc.size) continue;
+    acc.add(m);
   }
-  if (!sum || !count) return null;
-  const values = new Float64Array(n * n);
-  for (let k = 0; k < n * n; k++) {
-    const mean = count[k] > 0 ? sum[k] / count[k] : NaN;
-    values[k] = fisher ? Math.tanh(mean) : mean;
-  }
-  for (let i = 0; i < n; i++) values[i * n + i] = fisher ? 1 : 0;
-  return { n, values };
-}
-
-export function keptRegions(n: number, drop: number[]): Int32Array {
-  const d = new Set(drop);
-  return Int32Array.from({ length: n }, (_, i) => i).filter((i) => !d.has(i));
-}
-
-/** Sets dropped regions' scores to NaN (written as NA). */
-export function maskDropped(
-  scores: Record<string, number[]>,
-  kept: Int32Array,
-  n: number,
-): Record<string, number[]> {
-  if (kept.length === n) return scores;
-  const keep = new Uint8Array(n);
-  kept.forEach((i) => (keep[i] = 1));
-  for (const v of Object.values(scores)) for (let i = 0; i < v.length; i++) if (!keep[i]) v[i] = NaN;
-  return scores;
-}
-
-/** A result on the kept regions, re-indexed to the matrix as read. */
-function mapToRead(r: PersistenceResult, kept: Int32Array, nRead: number): PersistenceResult {
-  return {
-    ...r,
-    n: nRead,
-    representatives: r.representatives?.map((rep) => ({
-      ...rep,
-      edges: rep.edges.map(([i, j]) => [kept[i], kept[j]] as [number, number]),
-      nodes: rep.nodes.map((v) => kept[v]),
-    })),
-    mergeTree: r.mergeTree.map((ev) => ({
-      ...ev,
-      edge: [kept[ev.edge[0]], kept[ev.edge[1]]] as [number, number],
-      survivor: kept[ev.survivor],
-      absorbed: kept[ev.absorbed],
-    })),
-  };
+  return acc.count > 0 ? acc.mean() : null;
 }
 
 function curveDimension(name: string): number | null {

@@ -8,7 +8,8 @@ import { parentPort } from 'node:worker_threads';
 import { loadSubjectMatrix } from '../io/cohort.ts';
 import { cachePath, filtrationKey } from '../shared/cache-key.ts';
 import { sha256File, sha256Matrix } from '../shared/hash.ts';
-import { runFiltration, transferList } from './filtration.ts';
+import { readCachedFiltration } from '../shared/filtration-record.ts';
+import { featureTransferList, runFiltration, subjectFeatures, transferList, unpack } from './filtration.ts';
 import type { FiltrationFailure, WorkerReply, WorkerTask } from './filtration.ts';
 
 const port = parentPort;
@@ -28,22 +29,45 @@ async function handle(task: WorkerTask): Promise<WorkerReply> {
   const matrixSha256 = sha256Matrix(m);
   const key = filtrationKey(matrixSha256, task.settings);
   if (!task.recompute) {
-    const present = await access(cachePath(task.cacheDir, key)).then(
-      () => true,
-      () => false,
-    );
-    if (present)
-      return { kind: 'cached', taskId: task.taskId, matrixSha256, key, n: m.n, fileSha256: await fileHash };
+    if (!task.features) {
+      const present = await access(cachePath(task.cacheDir, key)).then(
+        () => true,
+        () => false,
+      );
+      if (present)
+        return { kind: 'cached', taskId: task.taskId, matrixSha256, key, n: m.n, fileSha256: await fileHash };
+    } else {
+      // The features need the filtration itself: read the entry (an unreadable one is recomputed).
+      const cached = await readCachedFiltration(cachePath(task.cacheDir, key), key);
+      if (cached) {
+        const features = subjectFeatures(cached, m, m.n, task.settings, task.features);
+        return {
+          kind: 'cached',
+          taskId: task.taskId,
+          matrixSha256,
+          key,
+          n: m.n,
+          fileSha256: await fileHash,
+          features,
+        };
+      }
+    }
   }
   const result = runFiltration({ taskId: task.taskId, n: m.n, values: m.values, settings: task.settings });
-  return { kind: 'computed', result, matrixSha256, key, fileSha256: await fileHash };
+  const features = task.features
+    ? subjectFeatures(unpack(result, key, matrixSha256), m, m.n, task.settings, task.features)
+    : undefined;
+  return { kind: 'computed', result, matrixSha256, key, fileSha256: await fileHash, features };
 }
 
 // The pool may queue a second task while one is being read or computed; replies carry their task id.
 port.on('message', (task: WorkerTask) => {
   handle(task).then(
     (reply) =>
-      port.postMessage({ ok: true, reply }, reply.kind === 'computed' ? transferList(reply.result) : []),
+      port.postMessage({ ok: true, reply }, [
+        ...(reply.kind === 'computed' ? transferList(reply.result) : []),
+        ...featureTransferList(reply.features),
+      ]),
     (e: unknown) => {
       const failure: FiltrationFailure = {
         taskId: task.taskId,

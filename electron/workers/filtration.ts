@@ -5,10 +5,16 @@
  * No node:* imports, so the same code runs in-process where threads are unavailable.
  */
 import { computePersistence } from '../engine/persistence.ts';
-import { toDistances } from '../engine/transform.ts';
+import { dropRegions, toDistances } from '../engine/transform.ts';
 import type { InputKind, TransformName } from '../engine/transform.ts';
-import type { CapSetting, SquareMatrix } from '../engine/types.ts';
-import type { SubjectEntry } from '../api.ts';
+import type { CapSetting, DistanceMatrix, PersistenceResult, SquareMatrix } from '../engine/types.ts';
+import type { AnalysisSettings, SubjectEntry } from '../api.ts';
+import { grid } from '../engine/features/grid.ts';
+import { subjectOnGrid, subjectSummary } from '../engine/features/rows.ts';
+import type { FeatureRow, SubjectSummary } from '../engine/features/rows.ts';
+import { CACHE_FORMAT, resultFromCache } from '../shared/filtration-record.ts';
+import type { CachedFiltration } from '../shared/filtration-record.ts';
+import { ENGINE_VERSION } from '../engine/version.ts';
 
 export interface FiltrationSettings {
   input: InputKind;
@@ -41,6 +47,41 @@ export interface SubjectTask {
   recompute: boolean;
   /** Also hash the file's bytes (a file of its own; a stack shared by many subjects is hashed once elsewhere). */
   hashFile: boolean;
+  /** Also compute the subject's features from the same read (subjectFeatures); the reply then carries them. */
+  features?: FeatureTaskSettings;
+}
+
+/** What a subject's features depend on beyond its filtration. */
+export type FeatureTaskSettings = Pick<
+  AnalysisSettings,
+  'maxDim' | 'persistenceFloor' | 'landscapeLevels' | 'dropRegions' | 'gridPoints' | 'gridRange'
+> & {
+  /** Also send the matrix as read back (for the group means the run gathers as subjects finish). */
+  keepMatrix?: boolean;
+};
+
+/** The feature settings of a run's settings. */
+export function featureTaskSettings(s: AnalysisSettings): FeatureTaskSettings {
+  return {
+    maxDim: s.maxDim,
+    persistenceFloor: s.persistenceFloor,
+    landscapeLevels: s.landscapeLevels,
+    dropRegions: s.dropRegions,
+    gridPoints: s.gridPoints,
+    gridRange: s.gridRange,
+  };
+}
+
+/**
+ * One subject's features as its worker computes them from the one read of its matrix: the
+ * grid-free summary (engine/features/rows.ts subjectSummary), and, when the grid is fixed by the
+ * settings (gridRange), the features and curves on it, the summary then without its simplex events.
+ */
+export interface SubjectFeatures {
+  summary: SubjectSummary;
+  onGrid: { features: FeatureRow; curves: Record<string, Float64Array> } | null;
+  /** The matrix as read (row-major n × n), when the task asked for it (keepMatrix). */
+  matrix?: Float64Array;
 }
 
 export type WorkerTask = ({ kind: 'matrix' } & FiltrationTask) | ({ kind: 'subject' } & SubjectTask);
@@ -52,6 +93,7 @@ export type WorkerReply =
       matrixSha256: string | null;
       key: string | null;
       fileSha256?: string | null;
+      features?: SubjectFeatures;
     }
   | {
       kind: 'cached';
@@ -60,6 +102,7 @@ export type WorkerReply =
       key: string;
       n: number;
       fileSha256?: string | null;
+      features?: SubjectFeatures;
     };
 
 /** Diagrams and representatives as flat typed arrays (transferable). Node indices are those of the matrix as given. */
@@ -85,29 +128,45 @@ export interface FiltrationFailure {
   error: string;
 }
 
-/** The matrix without the rows and columns in `drop`, and the original index of each kept region. */
-export function dropRegions(m: SquareMatrix, drop: number[]): { matrix: SquareMatrix; kept: Int32Array } {
-  const dropSet = new Set(drop.filter((r) => r < m.n));
-  const keptList: number[] = [];
-  for (let i = 0; i < m.n; i++) if (!dropSet.has(i)) keptList.push(i);
-  const kept = Int32Array.from(keptList);
-  if (kept.length === m.n) return { matrix: m, kept };
-  const k = kept.length;
-  const values = new Float64Array(k * k);
-  for (let a = 0; a < k; a++)
-    for (let b = 0; b < k; b++) values[a * k + b] = m.values[kept[a] * m.n + kept[b]];
-  return { matrix: { n: k, values }, kept };
-}
+export { dropRegions };
 
-export function runFiltration(task: FiltrationTask): PackedFiltration {
-  const { settings } = task;
-  const { matrix, kept } = dropRegions({ n: task.n, values: task.values }, settings.dropRegions);
+/**
+ * The one filtration of a matrix, for a subject (runFiltration) and a group's mean matrix (the
+ * group stage) alike: drop regions → distances (transform.ts) → persistence (persistence.ts) →
+ * node indices mapped back to the matrix as read (so dropped regions do not shift node names).
+ * `analysed` is the number of regions kept; `distances` those the filtration ran on (kept regions only).
+ */
+export function filtrationAsRead(
+  m: SquareMatrix,
+  settings: FiltrationSettings,
+): { result: PersistenceResult; analysed: number; distances: DistanceMatrix } {
+  const { matrix, kept } = dropRegions(m, settings.dropRegions);
   const distances = toDistances(matrix, { input: settings.input, transform: settings.transform });
   const r = computePersistence(distances, {
     maxDim: settings.maxDim,
     cap: settings.cap,
     representatives: settings.representatives,
   });
+  const result: PersistenceResult = {
+    ...r,
+    n: m.n,
+    representatives: r.representatives?.map((rep) => ({
+      ...rep,
+      edges: rep.edges.map(([i, j]) => [kept[i], kept[j]] as [number, number]),
+      nodes: rep.nodes.map((v) => kept[v]),
+    })),
+    mergeTree: r.mergeTree.map((ev) => ({
+      ...ev,
+      edge: [kept[ev.edge[0]], kept[ev.edge[1]]] as [number, number],
+      survivor: kept[ev.survivor],
+      absorbed: kept[ev.absorbed],
+    })),
+  };
+  return { result, analysed: matrix.n, distances };
+}
+
+export function runFiltration(task: FiltrationTask): PackedFiltration {
+  const { result: r, analysed } = filtrationAsRead({ n: task.n, values: task.values }, task.settings);
   const births = r.diagrams.map((d) => Float64Array.from(d, (iv) => iv.birth));
   const deaths = r.diagrams.map((d) => Float64Array.from(d, (iv) => iv.death));
   let repNodeStart: Int32Array | null = null;
@@ -124,26 +183,22 @@ export function runFiltration(task: FiltrationTask): PackedFiltration {
     });
     const nodes = new Int32Array(nodeStart[reps.length]);
     const edges = new Int32Array(2 * edgeStart[reps.length]);
-    // Back to the indices of the matrix as read, so dropped regions do not shift node names.
     reps.forEach((rep, k) => {
-      rep.nodes.forEach((v, t) => (nodes[nodeStart[k] + t] = kept[v]));
+      rep.nodes.forEach((v, t) => (nodes[nodeStart[k] + t] = v));
       rep.edges.forEach(([i, j], t) => {
-        edges[2 * (edgeStart[k] + t)] = kept[i];
-        edges[2 * (edgeStart[k] + t) + 1] = kept[j];
+        edges[2 * (edgeStart[k] + t)] = i;
+        edges[2 * (edgeStart[k] + t) + 1] = j;
       });
     });
     [repNodeStart, repNodes, repEdgeStart, repEdges] = [nodeStart, nodes, edgeStart, edges];
   }
   const mergeTree = new Float64Array(5 * r.mergeTree.length);
   r.mergeTree.forEach((ev, k) => {
-    mergeTree.set(
-      [ev.value, kept[ev.edge[0]], kept[ev.edge[1]], kept[ev.survivor], kept[ev.absorbed]],
-      5 * k,
-    );
+    mergeTree.set([ev.value, ev.edge[0], ev.edge[1], ev.survivor, ev.absorbed], 5 * k);
   });
   return {
     taskId: task.taskId,
-    n: matrix.n,
+    n: analysed,
     threshold: r.threshold,
     thresholdSource: r.thresholdSource,
     births,
@@ -154,6 +209,88 @@ export function runFiltration(task: FiltrationTask): PackedFiltration {
     repEdges,
     mergeTree,
   };
+}
+
+/** The cached record of a worker's packed result. */
+export function unpack(p: PackedFiltration, key: string, matrixSha256: string): CachedFiltration {
+  const diagrams = p.births.map((b, d) =>
+    Array.from(b, (birth, k): [number, number | null] => {
+      const death = p.deaths[d][k];
+      return [birth, Number.isFinite(death) ? death : null];
+    }),
+  );
+  let representatives: CachedFiltration['representatives'] = null;
+  if (p.repNodeStart && p.repNodes && p.repEdgeStart && p.repEdges) {
+    representatives = [];
+    for (let k = 0; k + 1 < p.repNodeStart.length; k++) {
+      const nodes = Array.from(p.repNodes.subarray(p.repNodeStart[k], p.repNodeStart[k + 1]));
+      const edges: Array<[number, number]> = [];
+      for (let t = p.repEdgeStart[k]; t < p.repEdgeStart[k + 1]; t++)
+        edges.push([p.repEdges[2 * t], p.repEdges[2 * t + 1]]);
+      representatives.push({ nodes, edges });
+    }
+  }
+  const mergeTree: CachedFiltration['mergeTree'] = [];
+  for (let k = 0; k < p.mergeTree.length; k += 5) {
+    const t = p.mergeTree;
+    mergeTree.push([t[k], t[k + 1], t[k + 2], t[k + 3], t[k + 4]]);
+  }
+  return {
+    format: CACHE_FORMAT,
+    key,
+    engineVersion: ENGINE_VERSION,
+    matrixSha256,
+    n: p.n,
+    threshold: Number.isFinite(p.threshold) ? p.threshold : null,
+    thresholdSource: p.thresholdSource,
+    diagrams,
+    representatives,
+    mergeTree,
+  };
+}
+
+/**
+ * A subject's features (SubjectFeatures) from its cached filtration and its matrix as read: the
+ * distances the filtration saw (regions dropped, transform applied; none when they cannot be made,
+ * and then no Euler values), the summary, and the grid's values when the grid is fixed. The one
+ * function the worker and the service's features stage both call.
+ */
+export function subjectFeatures(
+  cached: CachedFiltration,
+  matrix: SquareMatrix | null,
+  nRead: number,
+  filtration: Pick<FiltrationSettings, 'input' | 'transform'>,
+  settings: FeatureTaskSettings,
+): SubjectFeatures {
+  const r = resultFromCache(cached, nRead);
+  let distances: DistanceMatrix | undefined;
+  if (matrix) {
+    try {
+      distances = toDistances(dropRegions(matrix, settings.dropRegions).matrix, {
+        input: filtration.input,
+        transform: filtration.transform,
+      });
+    } catch {
+      distances = undefined;
+    }
+  }
+  const summary = subjectSummary(r, settings, distances);
+  const kept = settings.keepMatrix && matrix ? { matrix: matrix.values.slice() } : {};
+  if (!settings.gridRange) return { summary, onGrid: null, ...kept };
+  const g = grid(settings.gridRange[0], settings.gridRange[1], settings.gridPoints);
+  const onGrid = subjectOnGrid(summary, r, g, settings);
+  return { summary: { ...summary, euler: null }, onGrid, ...kept };
+}
+
+/** The buffers of a features reply, for postMessage's transfer list. */
+export function featureTransferList(f: SubjectFeatures | undefined): ArrayBuffer[] {
+  if (!f) return [];
+  const out: ArrayBuffer[] = [];
+  const ev = f.summary.euler;
+  if (ev) for (const a of [ev.values, ev.triangles, ev.tetrahedra]) if (a) out.push(a.buffer as ArrayBuffer);
+  if (f.onGrid) for (const c of Object.values(f.onGrid.curves)) out.push(c.buffer as ArrayBuffer);
+  if (f.matrix) out.push(f.matrix.buffer as ArrayBuffer);
+  return out;
 }
 
 /** The buffers of a packed result, for postMessage's transfer list. */

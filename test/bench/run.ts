@@ -8,6 +8,7 @@ import { existsSync } from 'node:fs';
 import { join } from 'node:path';
 
 const benches = [
+  ['targets.ts', 'the speed targets, whole processes vs their references'],
   ['engine.ts', 'persistence engine vs ripser'],
   ['io.ts', 'matrix and cohort loading'],
   ['cohort.ts', 'cohort throughput and memory'],

@@ -164,6 +164,31 @@ describe.skipIf(!hasChromium)('no freezes on a 120 × 200 cohort without a node 
       await tab('Regions');
       await drawn(`regions-${await page.locator('select[name=measure]').inputValue()}`);
     });
+    await measure('Compare: first visit', async () => {
+      await tab('Compare');
+      await page.locator('select[name=compare-a]').waitFor();
+    });
+    await measure('Compare: two subjects', async () => {
+      await page.locator('select[name=compare-a]').selectOption('scan:sub-003');
+      await page.locator('select[name=compare-b]').selectOption('scan:sub-004');
+      await page.getByRole('region').getByRole('button', { name: 'Compare', exact: true }).click();
+      await page.getByTestId('compare-distance').waitFor({ timeout: 60_000 });
+      await drawn('compare-diagrams');
+      await drawn('compare-barcodes');
+    });
+    // Both sides' distances are shown, one per dimension.
+    expect(await page.getByTestId('compare-distance').locator('[data-dimension]').count()).toBe(2);
+    await measure('Compare: subject against its group mean', async () => {
+      await page.getByRole('button', { name: 'A against its group mean' }).click();
+      await expect
+        .poll(() => page.getByTestId('compare-distance').textContent())
+        .toMatch(/mean of \d+ scans/);
+      await page.getByTestId('compare-positions').locator('tbody tr').first().waitFor();
+    });
+    await measure('Compare: another node measure', async () => {
+      await page.locator('select[name=compare-measure]').selectOption('h0_join_value');
+      await drawn('compare-nodes-h0_join_value');
+    });
     await measure('Export: first visit', async () => {
       await tab('Export');
       await page.getByRole('heading', { name: 'All tables of the run' }).waitFor();

@@ -5,7 +5,8 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { fisherMean, ledoitWolf, pearson } from '../../electron/engine/correlation.ts';
+import { ledoitWolf, pearson } from '../../electron/engine/correlation.ts';
+import { groupMeanMatrix } from '../../electron/engine/features/group.ts';
 import type { TimeSeries } from '../../electron/engine/correlation.ts';
 import { readTable2D } from '../../electron/io/read-matrix.ts';
 
@@ -78,16 +79,16 @@ describe('correlation of region time series', () => {
   });
 });
 
-describe('Fisher z group mean', () => {
+describe('Fisher z group mean (groupMeanMatrix, the one group mean)', () => {
   it('equals numpy tanh(mean(arctanh(r))) to 1e-12', () => {
     const { inputs, mean } = EXPECTED.series.fisher;
     const mats = inputs.map((m) => ({ n: m.length, values: flat(m) }));
-    expect(maxDiff(fisherMean(mats).values, flat(mean))).toBeLessThan(1e-12);
+    expect(maxDiff(groupMeanMatrix(mats, 'correlation').values, flat(mean))).toBeLessThan(1e-12);
   });
   it('is not the plain mean', () => {
     const a = { n: 2, values: Float64Array.of(1, 0.1, 0.1, 1) };
     const b = { n: 2, values: Float64Array.of(1, 0.95, 0.95, 1) };
-    const m = fisherMean([a, b]).values[1];
+    const m = groupMeanMatrix([a, b], 'correlation').values[1];
     expect(m).toBeCloseTo(Math.tanh((Math.atanh(0.1) + Math.atanh(0.95)) / 2), 15);
     expect(m).toBeGreaterThan(0.525);
   });

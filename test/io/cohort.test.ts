@@ -15,7 +15,8 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import type { CohortReport } from '../../electron/api.ts';
-import { dropRegions, loadSubjectMatrix, openCohort } from '../../electron/io/cohort.ts';
+import { loadSubjectMatrix, openCohort } from '../../electron/io/cohort.ts';
+import { dropRegions } from '../../electron/engine/transform.ts';
 
 const FIX = join(import.meta.dirname, '..', 'fixtures', 'io');
 type Json = number | null | Json[];
@@ -328,6 +329,6 @@ describe('other layouts and doors', () => {
 
   it('dropRegions removes rows and columns', () => {
     const m = { n: 3, values: Float64Array.of(1, 2, 3, 4, 5, 6, 7, 8, 9) };
-    expect(Array.from(dropRegions(m, [1]).values)).toEqual([1, 3, 7, 9]);
+    expect(Array.from(dropRegions(m, [1]).matrix.values)).toEqual([1, 3, 7, 9]);
   });
 });

@@ -73,8 +73,12 @@ describe('listRuns and the export’s progress', () => {
     const mine = events.filter((e) => e.runId === runId);
     expect(mine.length).toBeGreaterThan(1);
     expect(new Set(mine.map((e) => e.phase))).toEqual(new Set(['export']));
-    // The stages' own steps travel in the message: the statistics stage is among them.
-    expect(mine.some((e) => /^statistics/.test(e.message ?? ''))).toBe(true);
+    // The export copies the run's own tables: each file travels in a message, stats.tsv among them.
+    expect(mine.some((e) => e.message === 'stats.tsv')).toBe(true);
+    const last = mine.at(-1)!;
+    expect(last.message).toBe('written');
+    expect(last.done).toBe(last.total);
+    expect(last.total).toBeGreaterThan(1);
     const listed = (await service.listRuns()).find((r) => r.runId === runId);
     expect(listed?.status).toBe('done');
     expect(listed?.progress?.phase).toBe('done');

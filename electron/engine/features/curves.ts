@@ -2,9 +2,10 @@
  * A subject's curves on the cohort grid, by the names api.ts CurveBand uses — the inputs of the
  * group means and bootstrap bands (group.ts curveBands).
  */
-import type { DistanceMatrix, PersistenceResult } from '../types.ts';
+import type { PersistenceResult } from '../types.ts';
 import { bettiCurve } from './betti.ts';
 import { eulerCurve } from './euler.ts';
+import type { SimplexSource } from './euler.ts';
 import { userCap } from './grid.ts';
 import { landscapes } from './landscape.ts';
 
@@ -20,7 +21,7 @@ export function subjectCurves(
   result: PersistenceResult,
   gridValues: ArrayLike<number>,
   settings: { maxDim: 1 | 2; landscapeLevels: number },
-  distances?: DistanceMatrix,
+  distances?: SimplexSource,
 ): Record<string, Float64Array> {
   const out: Record<string, Float64Array> = {};
   for (let d = 0; d <= settings.maxDim; d++) {

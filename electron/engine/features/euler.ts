@@ -17,6 +17,7 @@
  * among those common neighbours. Bitset rows make each a popcount of ANDed words. Every simplex is
  * counted once, at the value of its longest edge, which is its diameter.
  */
+import { sortByValue } from '../radix.ts';
 import type { DistanceMatrix } from '../types.ts';
 
 function popcount(x: number): number {
@@ -48,23 +49,32 @@ export function visitSimplices(
   visit: (k: number, value: number, count: number) => void,
 ): void {
   const { n, values } = d;
-  // Edges that can enter before the limit, ascending by length.
-  const ei: number[] = [];
-  const ej: number[] = [];
-  const ew: number[] = [];
+  // Edges that can enter before the limit, ascending by length (ties in index order: stable).
+  let m = 0;
+  let negative = false;
+  for (let k = 0; k < values.length; k++) {
+    if (values[k] <= limit) m++;
+    if (values[k] < 0) negative = true;
+  }
+  const ei = new Int32Array(m);
+  const ej = new Int32Array(m);
+  const ew = new Float64Array(m);
   let k = 0;
+  let e = 0;
   for (let i = 0; i < n; i++) {
     for (let j = 0; j < i; j++, k++) {
       const w = values[k];
       if (w <= limit) {
-        ei.push(i);
-        ej.push(j);
-        ew.push(w);
+        ei[e] = i;
+        ej[e] = j;
+        ew[e++] = w;
       }
     }
   }
-  const order = Array.from(ew.keys()).sort((a, b) => ew[a] - ew[b]);
-
+  const order = new Uint32Array(m);
+  for (let q = 0; q < m; q++) order[q] = q;
+  if (negative) order.sort((a, b) => ew[a] - ew[b] || a - b);
+  else sortByValue(order, ew); // stable radix sort (radix.ts): the same order as a stable comparison sort
   const words = (n + 31) >>> 5;
   const adj = new Int32Array(n * words);
   const common = new Int32Array(words);
@@ -103,6 +113,79 @@ export function visitSimplices(
 }
 
 /**
+ * The simplices of visitSimplices recorded once, so that Euler curves and areas can be evaluated
+ * later on a grid not known yet (the cohort's), without the distances: per edge in the order
+ * visitSimplices enters them, its value and the triangles (and tetrahedra) it completes.
+ * replaySimplices calls a visitor exactly as visitSimplices would have (same batches, same order),
+ * so every sum over them is the same to the bit. 12 bytes per edge (16 with tetrahedra).
+ */
+export interface SimplexEvents {
+  kind: 'simplex-events';
+  /** Vertices of the complex (the distance matrix's n). */
+  n: number;
+  topDim: 1 | 2 | 3;
+  /** Values were recorded up to this limit (inclusive). */
+  limit: number;
+  values: Float64Array;
+  triangles: Int32Array | null;
+  tetrahedra: Int32Array | null;
+}
+
+/**
+ * Records visitSimplices(d, topDim, limit) as SimplexEvents.
+ *
+ *   simplexEvents(square with sides 1 and diagonals 2, 2) → values [1, 1, 1, 1, 2, 2], triangles [0, 0, 0, 0, 2, 2]
+ */
+export function simplexEvents(d: DistanceMatrix, topDim: 1 | 2 | 3, limit = Infinity): SimplexEvents {
+  let m = 0;
+  for (let k = 0; k < d.values.length; k++) if (d.values[k] <= limit) m++;
+  const values = new Float64Array(m);
+  const triangles = topDim >= 2 ? new Int32Array(m) : null;
+  const tetrahedra = topDim >= 3 ? new Int32Array(m) : null;
+  let e = -1;
+  visitSimplices(d, topDim, limit, (k, value, count) => {
+    if (k === 1) values[++e] = value;
+    else if (k === 2) triangles![e] = count;
+    else tetrahedra![e] = count;
+  });
+  return { kind: 'simplex-events', n: d.n, topDim, limit, values, triangles, tetrahedra };
+}
+
+/** Calls visit as visitSimplices(d, topDim, limit, visit) would have, from recorded events (topDim ≤ the events', limit ≤ theirs). */
+export function replaySimplices(
+  ev: SimplexEvents,
+  topDim: 1 | 2 | 3,
+  limit: number,
+  visit: (k: number, value: number, count: number) => void,
+): void {
+  if (topDim > ev.topDim || limit > ev.limit)
+    throw new RangeError(
+      `simplex events hold dimensions ≤ ${ev.topDim} up to ${ev.limit}; asked ${topDim} up to ${limit}`,
+    );
+  const { values, triangles, tetrahedra } = ev;
+  for (let e = 0; e < values.length; e++) {
+    const w = values[e];
+    if (!(w <= limit)) break; // ascending: the rest lie beyond the limit too
+    visit(1, w, 1);
+    if (topDim >= 2 && triangles![e] > 0) visit(2, w, triangles![e]);
+    if (topDim >= 3 && tetrahedra![e] > 0) visit(3, w, tetrahedra![e]);
+  }
+}
+
+/** The simplices of a distance matrix, or of its recorded events: one source for the curves and areas below. */
+export type SimplexSource = DistanceMatrix | SimplexEvents;
+
+function visitSource(
+  src: SimplexSource,
+  topDim: 1 | 2 | 3,
+  limit: number,
+  visit: (k: number, value: number, count: number) => void,
+): void {
+  if ('kind' in src && src.kind === 'simplex-events') replaySimplices(src, topDim, limit, visit);
+  else visitSimplices(src as DistanceMatrix, topDim, limit, visit);
+}
+
+/**
  * counts[k][g] = number of k-simplices with diameter ≤ grid[g] (and ≤ cap), k = 0 … topDim (≤ 3).
  * Vertices enter at 0.
  *
@@ -110,7 +193,7 @@ export function visitSimplices(
  *   → [[4, 4], [4, 6], [0, 4], [0, 1]]
  */
 export function simplexCountCurves(
-  d: DistanceMatrix,
+  d: SimplexSource,
   gridValues: ArrayLike<number>,
   topDim: 1 | 2 | 3,
   cap = Infinity,
@@ -122,7 +205,7 @@ export function simplexCountCurves(
   for (let g = 0; g < G; g++) counts[0][g] = gridValues[g] >= 0 ? d.n : 0;
   const bins: Float64Array[] = [];
   for (let q = 0; q <= topDim; q++) bins.push(new Float64Array(G + 1));
-  visitSimplices(d, topDim, Math.min(cap, gridValues[G - 1]), (q, value, count) => {
+  visitSource(d, topDim, Math.min(cap, gridValues[G - 1]), (q, value, count) => {
     bins[q][lowerBound(gridValues, value)] += count;
   });
   for (let q = 1; q <= topDim; q++) {
@@ -141,16 +224,10 @@ export function simplexCountCurves(
  *
  *   eulerArea(square with sides 1 and diagonals 2, 0, 3, 2) → 4·3 − (4·2 + 2·1) + 4·1 = 6
  */
-export function eulerArea(
-  d: DistanceMatrix,
-  a: number,
-  b: number,
-  topDim: 1 | 2 | 3,
-  cap = Infinity,
-): number {
+export function eulerArea(d: SimplexSource, a: number, b: number, topDim: 1 | 2 | 3, cap = Infinity): number {
   if (!(b >= a)) return 0;
   let area = d.n * (b - Math.max(a, 0));
-  visitSimplices(d, topDim, Math.min(cap, b), (q, value, count) => {
+  visitSource(d, topDim, Math.min(cap, b), (q, value, count) => {
     area += (q % 2 === 0 ? 1 : -1) * count * (b - Math.max(a, value));
   });
   return area;
@@ -163,7 +240,7 @@ export function eulerArea(
  *   (at 1 a 4-cycle: 4 − 4 = 0 = β0 − β1; at 2 a hollow tetrahedron: 4 − 6 + 4 = 2 = 1 − 0 + 1)
  */
 export function eulerCurve(
-  d: DistanceMatrix,
+  d: SimplexSource,
   gridValues: ArrayLike<number>,
   topDim: 1 | 2 | 3,
   cap = Infinity,

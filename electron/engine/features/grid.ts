@@ -52,15 +52,39 @@ export function filtrationEnd(r: PersistenceResult): number {
  *   cohortGrid([resultA, resultB], 100) → grid(min first-edge, max threshold, 100)
  */
 export function cohortGrid(results: PersistenceResult[], points = 100): Float64Array {
-  let lo = Infinity;
-  let hi = -Infinity;
-  for (const r of results) {
-    if (r.mergeTree.length > 0) lo = Math.min(lo, r.mergeTree[0].value);
-    hi = Math.max(hi, filtrationEnd(r));
+  if (results.length === 0) throw new RangeError('cohort grid: no subject results to span');
+  const range = new GridRange();
+  for (const r of results) range.addResult(r);
+  return range.grid({ gridPoints: points, gridRange: null });
+}
+
+/**
+ * The cohort's filtration range gathered one subject at a time (cohortGrid without holding every
+ * result): add each subject's first merge value and filtration end, then take the grid.
+ */
+export class GridRange {
+  private lo = Infinity;
+  private hi = -Infinity;
+
+  /** A subject's first merge value (null without merges) and its filtration end (filtrationEnd). */
+  add(first: number | null, end: number): void {
+    if (first !== null) this.lo = Math.min(this.lo, first);
+    this.hi = Math.max(this.hi, end);
   }
-  if (!Number.isFinite(hi)) throw new RangeError('cohort grid: no subject results to span');
-  if (!Number.isFinite(lo) || lo > hi) lo = 0;
-  return grid(lo, hi, points);
+
+  addResult(r: PersistenceResult): void {
+    this.add(r.mergeTree.length > 0 ? r.mergeTree[0].value : null, filtrationEnd(r));
+  }
+
+  /** The user's range when the settings give one, else the range gathered (grid(0, 0) when empty). */
+  grid(settings: { gridPoints: number; gridRange: [number, number] | null }): Float64Array {
+    if (settings.gridRange) return grid(settings.gridRange[0], settings.gridRange[1], settings.gridPoints);
+    let lo = this.lo;
+    let hi = this.hi;
+    if (!Number.isFinite(hi)) hi = Number.isFinite(lo) ? lo : 0;
+    if (!Number.isFinite(lo) || lo > hi) lo = 0;
+    return grid(lo, hi, settings.gridPoints);
+  }
 }
 
 /**

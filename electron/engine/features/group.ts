@@ -22,10 +22,42 @@ export const FISHER_CLAMP = 1 - 1e-12;
  */
 export function groupMeanMatrix(matrices: SquareMatrix[], kind: 'correlation' | 'plain'): SquareMatrix {
   if (matrices.length === 0) throw new MatrixError('group mean of no matrices');
-  const n = matrices[0].n;
-  const sum = new Float64Array(n * n);
-  const count = new Float64Array(n * n);
-  matrices.forEach((m, s) => {
+  const acc = new GroupMeanAccumulator(kind);
+  for (const m of matrices) acc.add(m);
+  return acc.mean();
+}
+
+/**
+ * groupMeanMatrix one matrix at a time, so a group's mean is gathered as its subjects are read
+ * (never all held): add() each matrix, then mean(). The same sums in the same order.
+ */
+export class GroupMeanAccumulator {
+  readonly kind: 'correlation' | 'plain';
+  /** Matrices added so far. */
+  count = 0;
+  private n = -1;
+  private sum: Float64Array | null = null;
+  private cells: Float64Array | null = null;
+
+  constructor(kind: 'correlation' | 'plain') {
+    this.kind = kind;
+  }
+
+  /** The size of the matrices added (−1 before the first). */
+  get size(): number {
+    return this.n;
+  }
+
+  add(m: SquareMatrix): void {
+    const s = this.count;
+    if (this.n < 0) {
+      this.n = m.n;
+      this.sum = new Float64Array(m.n * m.n);
+      this.cells = new Float64Array(m.n * m.n);
+    }
+    const n = this.n;
+    const sum = this.sum!;
+    const count = this.cells!;
     if (m.n !== n || m.values.length !== n * n) {
       throw new MatrixError(`matrix ${s + 1} of the group is ${m.n} × ${m.n}, the first is ${n} × ${n}`);
     }
@@ -33,7 +65,7 @@ export function groupMeanMatrix(matrices: SquareMatrix[], kind: 'correlation' | 
       for (let j = 0; j < n; j++) {
         const v = m.values[i * n + j];
         if (!Number.isFinite(v)) continue;
-        if (kind === 'correlation') {
+        if (this.kind === 'correlation') {
           if (i === j) continue;
           if (Math.abs(v) > 1 + 1e-9) {
             throw new MatrixError(
@@ -48,14 +80,20 @@ export function groupMeanMatrix(matrices: SquareMatrix[], kind: 'correlation' | 
         count[i * n + j]++;
       }
     }
-  });
-  const values = new Float64Array(n * n);
-  for (let k = 0; k < n * n; k++) {
-    const mean = count[k] > 0 ? sum[k] / count[k] : NaN;
-    values[k] = kind === 'correlation' ? Math.tanh(mean) : mean;
+    this.count++;
   }
-  if (kind === 'correlation') for (let i = 0; i < n; i++) values[i * n + i] = 1;
-  return { n, values };
+
+  mean(): SquareMatrix {
+    if (this.count === 0 || !this.sum || !this.cells) throw new MatrixError('group mean of no matrices');
+    const n = this.n;
+    const values = new Float64Array(n * n);
+    for (let k = 0; k < n * n; k++) {
+      const mean = this.cells[k] > 0 ? this.sum[k] / this.cells[k] : NaN;
+      values[k] = this.kind === 'correlation' ? Math.tanh(mean) : mean;
+    }
+    if (this.kind === 'correlation') for (let i = 0; i < n; i++) values[i * n + i] = 1;
+    return { n, values };
+  }
 }
 
 /**

@@ -6,13 +6,15 @@ import type { AnalysisSettings, NodeInfo, Table } from '../../api.ts';
 import type { DistanceMatrix, PersistenceResult } from '../types.ts';
 import { bettiArea } from './betti.ts';
 import { featureColumnNames } from './columns.ts';
-import { eulerArea } from './euler.ts';
+import { eulerArea, simplexEvents } from './euler.ts';
+import type { SimplexEvents, SimplexSource } from './euler.ts';
 import { filtrationEnd, userCap } from './grid.ts';
 import { h0BirthComponentLifetime, h0JoinValue } from './h0-merge-tree.ts';
 import { h1Participation } from './h1-participation.ts';
 import { intervalStats } from './interval-stats.ts';
 import { landscapeNorms, landscapes } from './landscape.ts';
 import { networkMeans } from './networks.ts';
+import { subjectCurves } from './curves.ts';
 
 export type FeatureRow = Record<string, number | null>;
 
@@ -33,12 +35,22 @@ export function subjectFeatureRow(
   result: PersistenceResult,
   gridValues: ArrayLike<number>,
   settings: FeatureSettings,
-  distances?: DistanceMatrix,
+  distances?: SimplexSource,
 ): FeatureRow {
+  const row = emptyFeatureRow(settings);
+  intervalFeatures(row, result, settings);
+  gridFeatures(row, result, gridValues, settings, distances);
+  return row;
+}
+
+function emptyFeatureRow(settings: FeatureSettings): FeatureRow {
   const row: FeatureRow = {};
   for (const name of featureColumnNames(settings.maxDim, settings.landscapeLevels)) row[name] = null;
-  const a = gridValues[0];
-  const b = gridValues[gridValues.length - 1];
+  return row;
+}
+
+/** The features that do not depend on the grid: interval statistics (intervalStats) of every dimension. */
+function intervalFeatures(row: FeatureRow, result: PersistenceResult, settings: FeatureSettings): void {
   for (let d = 0; d <= settings.maxDim; d++) {
     const dg = result.diagrams[d];
     if (!dg) continue;
@@ -58,6 +70,22 @@ export function subjectFeatureRow(
     row[p + 'mean_lifetime_finite'] = finiteOrNull(s.meanLifetime);
     row[p + 'median_lifetime_finite'] = finiteOrNull(s.medianLifetime);
     row[p + 'entropy_finite'] = finiteOrNull(s.entropy);
+  }
+}
+
+/** The features on the grid: Betti areas, landscape norms, and the Euler area when the simplices are given. */
+function gridFeatures(
+  row: FeatureRow,
+  result: PersistenceResult,
+  gridValues: ArrayLike<number>,
+  settings: FeatureSettings,
+  simplices?: SimplexSource,
+): void {
+  const a = gridValues[0];
+  const b = gridValues[gridValues.length - 1];
+  for (let d = 0; d <= settings.maxDim; d++) {
+    const dg = result.diagrams[d];
+    if (!dg) continue;
     row[`betti${d}_area`] = bettiArea(dg, a, b);
     const lambdas = landscapes(dg, gridValues, settings.landscapeLevels);
     lambdas.forEach((lambda, k) => {
@@ -66,10 +94,72 @@ export function subjectFeatureRow(
       row[`landscape${d}_${k + 1}_l2`] = l2;
     });
   }
-  if (distances) {
-    row['euler_area'] = eulerArea(distances, a, b, (settings.maxDim + 1) as 2 | 3, userCap(result));
+  if (simplices) {
+    row['euler_area'] = eulerArea(simplices, a, b, (settings.maxDim + 1) as 2 | 3, userCap(result));
   }
-  return row;
+}
+
+/**
+ * What one subject contributes to a cohort's features before the cohort's grid is known, computed
+ * where its matrix was read (a worker) from that one read: the grid-free features (interval
+ * statistics), its node scores (dropped regions NaN), its share of the cohort grid's range, and
+ * its simplices recorded as SimplexEvents (up to its user cap), from which subjectOnGrid evaluates
+ * the Euler curve and area on any grid exactly as from the distances. Without distances there are
+ * no Euler values (as in subjectFeatureRow).
+ *
+ *   subjectSummary(resultAsRead, settings, distancesAfterDrop)
+ *   → {first: 0.12, end: 0.83, features: {h0_count: 30, …, betti0_area: null, …}, nodeScores: {…}, euler: {…}}
+ */
+export interface SubjectSummary {
+  /** The first merge value of the H0 merge tree (the smallest edge), null without merges. */
+  first: number | null;
+  /** filtrationEnd of the result. */
+  end: number;
+  features: FeatureRow;
+  nodeScores: Record<string, number[]>;
+  euler: SimplexEvents | null;
+}
+
+export function subjectSummary(
+  result: PersistenceResult,
+  settings: FeatureSettings & Pick<AnalysisSettings, 'dropRegions'>,
+  distances?: DistanceMatrix,
+): SubjectSummary {
+  const features = emptyFeatureRow(settings);
+  intervalFeatures(features, result, settings);
+  return {
+    first: result.mergeTree.length > 0 ? result.mergeTree[0].value : null,
+    end: filtrationEnd(result),
+    features,
+    nodeScores: maskDroppedRegions(subjectNodeScores(result, settings), settings.dropRegions),
+    euler: distances ? simplexEvents(distances, (settings.maxDim + 1) as 2 | 3, userCap(result)) : null,
+  };
+}
+
+/**
+ * A subject's scalar features and curves on the cohort grid from its summary and its result: the
+ * same numbers as subjectFeatureRow and subjectCurves from the distances.
+ */
+export function subjectOnGrid(
+  summary: SubjectSummary,
+  result: PersistenceResult,
+  gridValues: ArrayLike<number>,
+  settings: FeatureSettings,
+): { features: FeatureRow; curves: Record<string, Float64Array> } {
+  const features = { ...summary.features };
+  gridFeatures(features, result, gridValues, settings, summary.euler ?? undefined);
+  return { features, curves: subjectCurves(result, gridValues, settings, summary.euler ?? undefined) };
+}
+
+/** Sets the scores of dropped regions to NaN (written as NA). */
+export function maskDroppedRegions(
+  scores: Record<string, number[]>,
+  drop: number[],
+): Record<string, number[]> {
+  if (drop.length === 0) return scores;
+  const gone = new Set(drop);
+  for (const v of Object.values(scores)) for (let i = 0; i < v.length; i++) if (gone.has(i)) v[i] = NaN;
+  return scores;
 }
 
 /**

@@ -5,7 +5,6 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import type { DistanceMatrix, Interval } from '../../../electron/engine/types.ts';
-import type { PersistenceImageSpec } from '../../../electron/engine/features/image.ts';
 
 const DIR = join(import.meta.dirname, '..', '..', 'reference', 'goldens', 'features');
 
@@ -25,7 +24,6 @@ export interface DimGolden {
   landscape_l2: number[];
   entropy: number | null;
   stats: Record<string, number | null>;
-  image?: { spec: Omit<PersistenceImageSpec, 'dim'>; values: number[] };
 }
 
 export interface CurveCase {
@@ -47,18 +45,6 @@ function load<T>(file: string): T {
 }
 
 export const curves = load<{ source: Source; cases: CurveCase[] }>('curves.json');
-export const partitions = load<{
-  source: Source;
-  ari: Array<{ a: Array<string | number>; b: Array<string | number>; ari: number }>;
-  clusterings: Array<{
-    rows: number;
-    cols: number;
-    k: number;
-    values: number[];
-    labels: number[];
-    heights: number[];
-  }>;
-}>('partitions.json');
 export const group = load<{
   source: Source;
   n: number;

@@ -5,7 +5,6 @@ import { describe, expect, it } from 'vitest';
 import { bettiArea, bettiCurve } from '../../../electron/engine/features/betti.ts';
 import { eulerArea, eulerCurve, simplexCountCurves } from '../../../electron/engine/features/euler.ts';
 import { cohortGrid, grid } from '../../../electron/engine/features/grid.ts';
-import { cohortImageSpec, persistenceImage } from '../../../electron/engine/features/image.ts';
 import {
   intervalStats,
   median,
@@ -155,30 +154,5 @@ describe('landscapes', () => {
   it('norms of the tent [0, 2) sampled at 0, 1, 2: L¹ = 1, L² = 1 by the trapezoid rule', () => {
     // exact L² of the tent would be √(2/3); the trapezoid on three samples gives √1 (documented).
     expect(landscapeNorms([0, 1, 0], [0, 1, 2])).toEqual({ l1: 1, l2: 1 });
-  });
-});
-
-describe('persistence images', () => {
-  it('one point (0, 1) at σ = 1, sampled at persistence 0 and 1', () => {
-    const img = persistenceImage([{ birth: 0, death: 1 }], {
-      dim: 1,
-      birthRange: [0, 0],
-      persistenceRange: [0, 1],
-      resolution: [1, 2],
-      sigma: 1,
-    });
-    // weight min(1, 1/1) = 1; Gaussian density 1/(2π) · e^{−r²/2} with r = 1 and 0.
-    expect(img[0]).toBeCloseTo(Math.exp(-0.5) / (2 * Math.PI), 15);
-    expect(img[1]).toBeCloseTo(1 / (2 * Math.PI), 15);
-  });
-  it('the cohort spec spans every subject, essential classes excluded', () => {
-    const r1 = computePersistence(square);
-    const big = { n: 4, values: square.values.map((x) => 3 * x) };
-    const spec = cohortImageSpec([r1, computePersistence(big)], 1, [10, 10]);
-    // H1: [1, 2) and [3, 6): births 1 … 3, persistence 0 … 3, σ = 3/10
-    expect(spec.birthRange).toEqual([1, 3]);
-    expect(spec.persistenceRange).toEqual([0, 3]);
-    expect(spec.sigma).toBeCloseTo(0.3, 15);
-    expect(() => persistenceImage([], { ...spec, sigma: 0 })).toThrow(/σ/);
   });
 });

@@ -4,7 +4,6 @@
  * against GUDHI's H0 deaths (goldens), the join value against a brute-force component count.
  */
 import { describe, expect, it } from 'vitest';
-import { cycleModules } from '../../../electron/engine/features/cycle-modules.ts';
 import { h0BirthComponentLifetime, h0JoinValue } from '../../../electron/engine/features/h0-merge-tree.ts';
 import { h1Participation, participationMatrix } from '../../../electron/engine/features/h1-participation.ts';
 import { networkMeans } from '../../../electron/engine/features/networks.ts';
@@ -12,7 +11,6 @@ import { computePersistence } from '../../../electron/engine/persistence.ts';
 import { createRng } from '../../../electron/engine/random.ts';
 import { pairIndex } from '../../../electron/engine/transform.ts';
 import type { CycleRepresentative, DistanceMatrix } from '../../../electron/engine/types.ts';
-import type { NodeInfo } from '../../../electron/api.ts';
 import { curves, distancesOf } from './goldens.ts';
 
 const rep = (birth: number, death: number, nodes: number[]): CycleRepresentative => ({
@@ -148,37 +146,6 @@ describe('H0 from the merge tree', () => {
       expect(absorbed.size).toBe(c.n - 1);
     });
   }
-});
-
-describe('cycle modules: clustering the participation embedding', () => {
-  it('two far-apart rings give two clusters that match their networks (ARI 1)', () => {
-    // Nodes 0–5 on one hexagon, 6–11 on another, rings 100 apart: one H1 cycle per ring.
-    const n = 12;
-    const values = new Float64Array((n * (n - 1)) / 2);
-    for (let i = 0; i < n; i++) {
-      for (let j = 0; j < i; j++) {
-        const sameRing = Math.floor(i / 6) === Math.floor(j / 6);
-        const gap = Math.abs((i % 6) - (j % 6));
-        values[pairIndex(i, j)] = sameRing ? Math.min(gap, 6 - gap) + 0.01 * (i + j) : 100;
-      }
-    }
-    const d = { n, values };
-    const r = computePersistence(d, { representatives: true });
-    const nodes: NodeInfo[] = Array.from({ length: n }, (_, i) => ({
-      index: i,
-      label: `r${i}`,
-      network: i < 6 ? 'A' : 'B',
-      x: null,
-      y: null,
-      z: null,
-    }));
-    const m = cycleModules(n, r.representatives!, nodes, { threshold: r.threshold });
-    expect(m.k).toBe(2);
-    expect(m.cycles).toBe(2);
-    expect(m.labels).toEqual([0, 0, 0, 0, 0, 0, 1, 1, 1, 1, 1, 1]);
-    expect(m.ari).toBe(1);
-    expect(cycleModules(n, r.representatives!, null, { threshold: r.threshold }, 2).ari).toBeNull();
-  });
 });
 
 describe('network means', () => {
