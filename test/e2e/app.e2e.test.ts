@@ -428,10 +428,11 @@ describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
     const listed = await runs.locator('tbody tr').count();
     expect(listed).toBeGreaterThanOrEqual(3);
     await runs.getByRole('button', { name: 'Open run-1', exact: true }).click();
-    await expect.poll(() => page.getByTestId('run-summary').textContent()).toMatch(/^run-1 · Run done/);
-    await tab('Groups');
+    // A finished run opens on its results (Groups); the run panel then names it.
+    await expect.poll(() => page.locator('nav button.active').textContent()).toBe('Groups');
     await drawn('curve-betti1');
     await tab('Analysis');
+    await expect.poll(() => page.getByTestId('run-summary').textContent()).toMatch(/^run-1 · Run done/);
     await shot('11-runs');
   });
 
