@@ -260,6 +260,8 @@ export class Session {
       this.compareB = '';
       this.exported = null;
       this.exportProblem = null;
+      // A note about another run no longer applies once this one is shown.
+      this.notice = null;
     });
     if (this.runId !== runId) return;
     if (info.status !== 'running') await this.finish(runId);
