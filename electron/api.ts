@@ -200,6 +200,28 @@ export interface Provenance {
   counts?: { subjects: number; analysed: number; failed: number; excluded: number };
 }
 
+/**
+ * One run of this service session as listRuns reports it: enough for a client that was not there
+ * when it started (a reloaded page, a second window) to reattach to it or reopen it.
+ */
+export interface RunInfo {
+  runId: string;
+  status: 'running' | 'done' | 'cancelled' | 'failed';
+  /** When the run was started (ISO 8601). */
+  startedAt: string;
+  /** What the run was asked to do. */
+  request: {
+    cohort: OpenCohortRequest;
+    settings: AnalysisSettings;
+    stats: StatsSettings;
+    outDir: string | null;
+  };
+  /** The run's latest progress event (null before its first). */
+  progress: ProgressEvent | null;
+  /** While tables of the run are being exported: the export's latest progress event; else null. */
+  exporting: ProgressEvent | null;
+}
+
 // ---------- Results and the service's methods ----------
 
 /** A rectangular table as written to TSV/CSV: column names and rows (null = missing, written as NA). */
@@ -578,6 +600,8 @@ export interface LoopwiseApi {
   defaultSettings(): Promise<{ settings: AnalysisSettings; stats: StatsSettings }>;
   startRun(req: StartRunRequest): Promise<{ runId: string }>;
   cancelRun(runId: string): Promise<void>;
+  /** Every run of this service session, oldest first, with its state and latest progress. */
+  listRuns(): Promise<RunInfo[]>;
   /** Registers a listener for progress events; returns a function that unregisters it. */
   onProgress(listener: (e: ProgressEvent) => void): () => void;
   runSummary(runId: string): Promise<RunSummary | null>;
@@ -591,6 +615,10 @@ export interface LoopwiseApi {
   tablePage(runId: string, req: TablePageRequest): Promise<TablePage | null>;
   /** Two filtrations of a finished run side by side: scans or groups' mean matrices. */
   compare(runId: string, a: ComparisonSide, b: ComparisonSide): Promise<Comparison>;
-  /** Writes the tables of a finished run to outDir; refuses to overwrite existing files unless overwrite. */
+  /**
+   * Writes the tables of a finished run to outDir; refuses to overwrite existing files unless
+   * overwrite. Progress travels as events of phase 'export' with the run's id, never as the run's
+   * own phases; one export of a run at a time.
+   */
   exportRun(runId: string, outDir: string, overwrite: boolean): Promise<{ files: string[] }>;
 }

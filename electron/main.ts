@@ -9,7 +9,7 @@
  */
 import { app, BrowserWindow, dialog, ipcMain, session, shell, type IpcMainInvokeEvent } from 'electron';
 import { existsSync, mkdirSync } from 'node:fs';
-import { dirname, join, sep } from 'node:path';
+import { dirname, join, resolve, sep } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import type { LoopwiseApi, OpenCohortRequest } from './api.ts';
 import { callPaths, checkDoorPaths, realPathOf } from './service/confine.ts';
@@ -26,6 +26,8 @@ export interface ElectronAppOptions {
   /** The bundled preload script (CommonJS: sandboxed preloads cannot be ES modules). */
   preload: string;
   sampleCohort: string | null;
+  /** The study named at start (`npm start -- --cohort DIR`): readable, read-only, opened at once. */
+  startCohort?: string | null;
   defaultOutDir: string;
   version: string;
   /** The folders this session may touch (grows through native dialogs); shared with the service's allowedRoots. */
@@ -41,8 +43,9 @@ export function startElectronApp(api: LoopwiseApi, opts: ElectronAppOptions): vo
   const writeRoots = new Set<string>([opts.defaultOutDir]);
   roots.add(opts.defaultOutDir);
   if (opts.sampleCohort) roots.add(opts.sampleCohort);
-  // Never written: the sample and every cohort opened in this session.
-  const cohorts = new Set<string>(opts.sampleCohort ? [opts.sampleCohort] : []);
+  if (opts.startCohort) roots.add(opts.startCohort);
+  // Never written: the sample, the study named at start and every cohort opened in this session.
+  const cohorts = new Set<string>([opts.sampleCohort, opts.startCohort].filter((c): c is string => !!c));
 
   const fromOurPage = (e: IpcMainInvokeEvent) => e.senderFrame?.url.split('#')[0].split('?')[0] === pageUrl;
 
@@ -54,6 +57,7 @@ export function startElectronApp(api: LoopwiseApi, opts: ElectronAppOptions): vo
         mode: 'electron',
         version: opts.version,
         sampleCohort: opts.sampleCohort,
+        startCohort: opts.startCohort ?? null,
         defaultOutDir: opts.defaultOutDir,
         roots: [...roots],
       };
@@ -85,7 +89,16 @@ export function startElectronApp(api: LoopwiseApi, opts: ElectronAppOptions): vo
       cohorts.add(realPathOf('cohort' in arg ? arg.cohort.dir : arg.dir));
     }
     const fn = api[method] as (...a: unknown[]) => Promise<unknown>;
-    return fn.apply(api, checked.args);
+    try {
+      return await fn.apply(api, checked.args);
+    } catch (e) {
+      // Electron's IPC carries only an error's message: an output folder's refusal code travels at
+      // its end, in brackets, where the renderer reads it (as the HTTP door's `code` field).
+      const code = (e as { code?: unknown }).code;
+      if (e instanceof Error && e.name === 'OutDirError' && typeof code === 'string')
+        throw new Error(`${e.message} [${code}]`);
+      throw e;
+    }
   });
 
   const windows = new Set<BrowserWindow>();
@@ -166,10 +179,14 @@ async function boot(): Promise<void> {
     cacheDir: join(app.getPath('userData'), 'cache'),
     workerEntry: pathToFileURL(join(workerDir, 'filtration-worker.js')),
   });
+  // `npm start -- --cohort DIR` passes the study on: the app opens it at once.
+  const at = process.argv.indexOf('--cohort');
+  const startCohort = at > 0 && process.argv[at + 1] ? resolve(process.argv[at + 1]) : null;
   startElectronApp(api, {
     indexHtml: join(appRoot, 'dist', 'index.html'),
     preload: join(here, 'preload.cjs'),
     sampleCohort: sample ?? null,
+    startCohort,
     roots,
     defaultOutDir,
     version: app.getVersion(),

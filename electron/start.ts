@@ -11,6 +11,7 @@ import { homedir } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { parseArgs } from 'node:util';
+import { staleBuild } from './start-build.ts';
 import { createLoopwiseService } from './service/service.ts';
 import { startWebServer } from './web.ts';
 
@@ -25,10 +26,11 @@ function electronBinary(root = repo): string | null {
   return existsSync(exe) ? exe : null;
 }
 
+/** Builds the renderer and Electron entries when missing or older than their sources: never a stale app. */
 function ensureBuilt(): void {
-  if (existsSync(join(repo, 'dist', 'index.html')) && existsSync(join(repo, 'dist-electron', 'main.js')))
-    return;
-  console.log('Building the renderer (first start)…');
+  const why = staleBuild(repo);
+  if (!why) return;
+  console.log(`Building the app (${why})…`);
   const r = spawnSync('npm', ['run', 'build'], {
     cwd: repo,
     stdio: 'inherit',
@@ -51,7 +53,10 @@ async function main(): Promise<void> {
 
   const exe = values.browser ? null : electronBinary();
   if (exe) {
-    const child = spawn(exe, [repo], { stdio: 'inherit' });
+    // The study named at start travels to the desktop app, which opens it at once.
+    const child = spawn(exe, [repo, ...(values.cohort ? ['--cohort', resolve(values.cohort)] : [])], {
+      stdio: 'inherit',
+    });
     child.on('exit', (code) => process.exit(code ?? 0));
     return;
   }
@@ -79,7 +84,8 @@ async function main(): Promise<void> {
     roots,
     writeRoots: [outDir],
     staticDir: join(repo, 'dist'),
-    sampleCohort: values.cohort ? resolve(values.cohort) : existsSync(sample) ? sample : null,
+    sampleCohort: existsSync(sample) ? sample : null,
+    startCohort: values.cohort ? resolve(values.cohort) : null,
     defaultOutDir: outDir,
     version: JSON.parse(readFileSync(join(repo, 'package.json'), 'utf8')).version,
   });

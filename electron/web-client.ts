@@ -12,6 +12,7 @@ import type {
   LoopwiseApi,
   OpenCohortRequest,
   ProgressEvent,
+  RunInfo,
   RegionEffects,
   RegionValues,
   RunSummary,
@@ -38,6 +39,8 @@ export interface DoorInfo {
   version: string;
   /** The bundled demo cohort, when it is present. */
   sampleCohort: string | null;
+  /** The study named at start (`npm start -- --cohort DIR`): the app opens it at once. */
+  startCohort?: string | null;
   /** Where exports go unless the user picks another folder. */
   defaultOutDir: string | null;
   /** Browser mode: the only folders the server will touch. Electron: the folders picked so far. */
@@ -49,6 +52,11 @@ export interface LoopwiseDoor extends LoopwiseApi {
   info(): Promise<DoorInfo>;
   /** A native folder picker; present only in the Electron app. Resolves null when cancelled. */
   pickFolder?(purpose: 'cohort' | 'output'): Promise<string | null>;
+  /**
+   * Browser mode: tells when the service stops answering (false: the server stopped or the network
+   * dropped) and when it answers again (true). Returns a function that unregisters the listener.
+   */
+  onConnection?(listener: (connected: boolean) => void): () => void;
 }
 
 /** The request/response methods every door forwards (onProgress travels separately). */
@@ -57,6 +65,7 @@ export const API_METHODS = [
   'defaultSettings',
   'startRun',
   'cancelRun',
+  'listRuns',
   'runSummary',
   'cohortResults',
   'subjectResult',
@@ -218,6 +227,7 @@ export function checkCall(method: ApiMethod, args: unknown[]): CheckedCall {
       return { args: [req], paths: cohortPaths(req) };
     }
     case 'defaultSettings':
+    case 'listRuns':
       arity(args, 0, method);
       return { args: [], paths: [] };
     case 'startRun': {
@@ -320,6 +330,8 @@ export const TOKEN_HEADER = 'x-loopwise-token';
 
 interface EventSourceLike {
   onmessage: ((e: { data: string }) => void) | null;
+  onerror?: ((e: unknown) => void) | null;
+  onopen?: ((e: unknown) => void) | null;
   close(): void;
 }
 
@@ -337,26 +349,50 @@ export interface HttpClientOptions {
 export function createHttpClient(opts: HttpClientOptions): LoopwiseDoor {
   const doFetch = opts.fetch ?? ((input: RequestInfo | URL, init?: RequestInit) => fetch(input, init));
   const tokenHeaders: Record<string, string> = opts.token ? { [TOKEN_HEADER]: opts.token } : {};
+  const connection = new Set<(connected: boolean) => void>();
+  let connected = true;
+  const setConnected = (up: boolean) => {
+    if (up === connected) return;
+    connected = up;
+    for (const l of connection) l(up);
+  };
   const call = async <T>(method: string, args: unknown[]): Promise<T> => {
-    const res = await doFetch(`${opts.base}/api/${method}`, {
-      method: 'POST',
-      headers: { 'content-type': 'application/json', ...tokenHeaders },
-      body: JSON.stringify(args),
-    });
+    let res: Response;
+    try {
+      res = await doFetch(`${opts.base}/api/${method}`, {
+        method: 'POST',
+        headers: { 'content-type': 'application/json', ...tokenHeaders },
+        body: JSON.stringify(args),
+      });
+    } catch (e) {
+      // No answer at all (the server stopped, the network dropped): not the call's fault.
+      setConnected(false);
+      throw Object.assign(
+        new Error(`${method}: the Loopwise service does not answer (${(e as Error).message})`),
+        {
+          disconnected: true,
+        },
+      );
+    }
+    setConnected(true);
     const text = await res.text();
     if (!res.ok) {
       let message = text;
       let problems: Problem[] = [];
+      let code: string | null = null;
       try {
         const body: unknown = JSON.parse(text);
         if (isObj(body) && typeof body.error === 'string') message = body.error;
         if (isObj(body) && Array.isArray(body.problems)) problems = body.problems as Problem[];
+        if (isObj(body) && typeof body.code === 'string') code = body.code;
       } catch {
         // not JSON: keep the text as it came
       }
       const error = new Error(`${method}: ${message || res.statusText} (HTTP ${res.status})`);
-      // The contract's problems, so the renderer can show each under its field.
-      throw Object.assign(error, { problems });
+      // The contract's problems, so the renderer can show each under its field; the refusal's
+      // code (e.g. an output folder's), so it can offer the way out; the status, to tell a
+      // conflict from a fault.
+      throw Object.assign(error, { problems, code, status: res.status });
     }
     return (text === '' ? undefined : JSON.parse(text)) as T;
   };
@@ -372,6 +408,9 @@ export function createHttpClient(opts: HttpClientOptions): LoopwiseDoor {
       const event = JSON.parse(e.data) as ProgressEvent;
       for (const l of listeners) l(event);
     };
+    // The browser retries a dropped stream on its own; each failure and each reopening is told.
+    source.onerror = () => setConnected(false);
+    source.onopen = () => setConnected(true);
   };
 
   return {
@@ -380,6 +419,7 @@ export function createHttpClient(opts: HttpClientOptions): LoopwiseDoor {
     defaultSettings: () => call<{ settings: AnalysisSettings; stats: StatsSettings }>('defaultSettings', []),
     startRun: (req) => call<{ runId: string }>('startRun', [req]),
     cancelRun: (runId) => call<void>('cancelRun', [runId]),
+    listRuns: () => call<RunInfo[]>('listRuns', []),
     runSummary: (runId) => call<RunSummary | null>('runSummary', [runId]),
     cohortResults: (runId) => call<CohortResults | null>('cohortResults', [runId]),
     subjectResult: (runId, subjectId) => call<SubjectResult | null>('subjectResult', [runId, subjectId]),
@@ -389,6 +429,10 @@ export function createHttpClient(opts: HttpClientOptions): LoopwiseDoor {
     compare: (runId, a, b) => call<Comparison>('compare', [runId, a, b]),
     exportRun: (runId, outDir, overwrite) =>
       call<{ files: string[] }>('exportRun', [runId, outDir, overwrite]),
+    onConnection(listener) {
+      connection.add(listener);
+      return () => connection.delete(listener);
+    },
     onProgress(listener) {
       listeners.add(listener);
       if (!source) openSource();

@@ -31,6 +31,8 @@ export interface WebServerOptions {
   /** Fixed token (tests); a fresh random one otherwise. */
   token?: string;
   sampleCohort?: string | null;
+  /** The study named at start (read-only, like the sample), opened by the page at once. */
+  startCohort?: string | null;
   defaultOutDir?: string | null;
   version?: string;
 }
@@ -147,7 +149,9 @@ export async function startWebServer(api: LoopwiseApi, options: WebServerOptions
     if (!existsSync(r) || !statSync(r).isDirectory()) throw new Error(`Folder not found: ${r}`);
   }
   // Cohort folders are read-only: the sample, and every cohort a call of this session names.
-  const cohorts = new Set<string>(options.sampleCohort ? [resolve(options.sampleCohort)] : []);
+  const cohorts = new Set<string>(
+    [options.sampleCohort, options.startCohort].filter((c): c is string => !!c).map((c) => resolve(c)),
+  );
   const staticDir = options.staticDir && existsSync(options.staticDir) ? resolve(options.staticDir) : null;
   const sseClients = new Set<ServerResponse>();
   let port = options.port;
@@ -165,6 +169,7 @@ export async function startWebServer(api: LoopwiseApi, options: WebServerOptions
     mode: 'web',
     version: options.version ?? '0.0.0',
     sampleCohort: options.sampleCohort ?? null,
+    startCohort: options.startCohort ? resolve(options.startCohort) : null,
     defaultOutDir: options.defaultOutDir ?? null,
     roots: [...new Set([...roots, ...writeRoots])],
   });
@@ -243,7 +248,11 @@ export async function startWebServer(api: LoopwiseApi, options: WebServerOptions
                 ? 507
                 : 403
               : 500;
-      return send(res, status, { error: e instanceof Error ? e.message : String(e) });
+      // A refusal's code (the output folder's rule) lets the app offer its way out.
+      return send(res, status, {
+        error: e instanceof Error ? e.message : String(e),
+        ...(kind === 'OutDirError' && typeof code === 'string' ? { code } : {}),
+      });
     }
   }
 

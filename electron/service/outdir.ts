@@ -30,11 +30,22 @@ export const LEGACY_MARKER = '.loopwise-run.json';
 
 /** A refusal to use an output folder: the user can resolve it (another folder, --force, wait). */
 export class OutDirError extends Error {
-  constructor(message: string) {
+  /** Which rule refused, where a client can offer a way out (e.g. the app's "replace" choice). */
+  readonly code: OutDirErrorCode | null;
+  constructor(message: string, code: OutDirErrorCode | null = null) {
     super(message);
     this.name = 'OutDirError';
+    this.code = code;
   }
 }
+
+/**
+ * 'finished-run': the folder holds a finished run's tables (force replaces them); 'foreign-files':
+ * files Loopwise did not write (force writes beside them); 'unfinished-run': an unfinished run with
+ * other settings (force replaces it). Other refusals (a clash with a user's file, a live lock, a
+ * cohort's folder) have no code: force does not resolve them.
+ */
+export type OutDirErrorCode = 'finished-run' | 'foreign-files' | 'unfinished-run';
 
 export type RunDescription = Record<string, unknown>;
 
@@ -223,6 +234,7 @@ export class OutputFolder {
         throw new OutDirError(
           `${dir} already holds files Loopwise did not write (${list(visible)}); choose an empty or ` +
             `new output folder, or give --force to write beside them (they are left alone)`,
+          'foreign-files',
         );
       return [];
     }
@@ -232,12 +244,14 @@ export class OutputFolder {
       throw new OutDirError(
         `${dir} already holds files of a finished Loopwise run (${list(ownedVisible)}); give --force ` +
           `to replace them (files Loopwise did not write are left alone), or choose another output folder`,
+        'finished-run',
       );
     const diff = manifest.run ? describeDifferences(manifest.run, opts.run) : [];
     if (diff.length > 0)
       throw new OutDirError(
         `${dir} holds an unfinished run with other settings (${diff.join('; ')}); run the same ` +
           `command as before to resume it, give --force to replace it, or choose another output folder`,
+        'unfinished-run',
       );
     return [...owned];
   }

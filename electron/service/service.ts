@@ -20,6 +20,7 @@ import { readFile, rm } from 'node:fs/promises';
 import { join, resolve } from 'node:path';
 import { setInterval, clearInterval } from 'node:timers';
 import type {
+  RunInfo,
   AnalysisSettings,
   CohortReport,
   CohortResults,
@@ -51,7 +52,7 @@ import { openCohortSource } from './cohort-source.ts';
 import type { CohortSource, SourceOptions } from './cohort-source.ts';
 import type { RunHooks, StageOutput } from './hooks.ts';
 import { OutDirError } from './outdir.ts';
-import type { OutputFolder } from './outdir.ts';
+import type { OutDirErrorCode, OutputFolder } from './outdir.ts';
 import { openRunFolder } from './run-folder.ts';
 import { SHARD_DIR, checkShard, readShards, shardLockName, shareOf, writeShardManifest } from './shards.ts';
 import type { ShardManifest } from './shards.ts';
@@ -135,14 +136,24 @@ interface RunState {
   stageFailures: Array<{ subject: string; reason: string }>;
   summary: RunSummary | null;
   done: Promise<RunSummary>;
+  startedAt: string;
+  /** The run's latest progress event, for listRuns. */
+  lastProgress: ProgressEvent | null;
+  /** An export in flight: its latest progress event (null when none runs). */
+  exporting: ProgressEvent | null;
 }
 
 /** A run's state as it starts: running, nothing computed yet. */
 function newRunState(
-  fields: Pick<RunState, 'runId' | 'request' | 'source' | 'report' | 'cache' | 'run' | 'folder'>,
+  fields: Pick<
+    RunState,
+    'runId' | 'request' | 'source' | 'report' | 'cache' | 'run' | 'folder' | 'startedAt'
+  >,
 ): RunState {
   return {
     ...fields,
+    lastProgress: null,
+    exporting: null,
     status: 'running',
     cancelRequested: false,
     pool: null,
@@ -199,6 +210,11 @@ export class LoopwiseService implements LoopwiseApi {
   }
 
   private emit(e: ProgressEvent): void {
+    const run = this.runs.get(e.runId);
+    if (run) {
+      if (e.phase === 'export') run.exporting = e;
+      else run.lastProgress = e;
+    }
     for (const l of this.listeners) {
       try {
         l(e);
@@ -287,6 +303,7 @@ export class LoopwiseService implements LoopwiseApi {
       cache,
       run: null,
       folder: own,
+      startedAt: this.now().toISOString(),
     });
     this.runs.set(runId, state);
     state.done = this.execute(state, format);
@@ -478,7 +495,12 @@ export class LoopwiseService implements LoopwiseApi {
    * Tables, then hooks (2)–(4), then the output folder is marked complete (or failed, when a stage
    * could not run). Returns the files written. Throws when a file cannot be written.
    */
-  private async finish(state: RunState, folder: OutputFolder | null, format: TableFormat): Promise<string[]> {
+  private async finish(
+    state: RunState,
+    folder: OutputFolder | null,
+    format: TableFormat,
+    emit: (e: ProgressEvent) => void = (e) => this.emit(e),
+  ): Promise<string[]> {
     const run = state.run as RunRecords;
     const createdAt = this.now().toISOString();
     state.stageFailures = [];
@@ -500,7 +522,7 @@ export class LoopwiseService implements LoopwiseApi {
       source: state.source,
       folder,
       format,
-      emit: (e) => this.emit(e),
+      emit,
       cancelled: () => state.cancelRequested,
       subjectFeatures: state.subjectFeatures,
       groupMeans: state.groupMeans,
@@ -604,6 +626,7 @@ export class LoopwiseService implements LoopwiseApi {
       report: first.report,
       cache,
       folder,
+      startedAt: this.now().toISOString(),
       run: {
         cohortRoot: first.report.root,
         settings: first.settings,
@@ -657,6 +680,22 @@ export class LoopwiseService implements LoopwiseApi {
     return summary;
   }
 
+  async listRuns(): Promise<RunInfo[]> {
+    return [...this.runs.values()].map((s) => ({
+      runId: s.runId,
+      status: s.status,
+      startedAt: s.startedAt,
+      request: {
+        cohort: s.request.cohort,
+        settings: s.request.settings,
+        stats: s.request.stats,
+        outDir: s.request.outDir,
+      },
+      progress: s.lastProgress,
+      exporting: s.exporting,
+    }));
+  }
+
   async runSummary(runId: string): Promise<RunSummary | null> {
     return this.runs.get(runId)?.summary ?? null;
   }
@@ -701,6 +740,8 @@ export class LoopwiseService implements LoopwiseApi {
           ? `run ${runId} is still running: export once it is done`
           : `run ${runId} ${s.status === 'cancelled' ? 'was cancelled' : `failed (${s.stageFailures.map((f) => `${f.subject} ${f.reason}`).join('; ') || 'see its summary'})`}: nothing to export; fix the settings and run again`,
       );
+    if (s.exporting)
+      throw new RunStateError(`run ${runId} is being exported already: wait until that export ends`);
     const dir = resolve(outDir);
     const tables = s.tables;
     if (!tables)
@@ -708,16 +749,65 @@ export class LoopwiseService implements LoopwiseApi {
         `run ${runId} kept no tables to export (no folder of its own could be made under ${s.cache.dir}); run it again with an output folder`,
       );
     const format = s.request.tableFormat ?? 'tsv';
-    const folder = await openRunFolder(dir, s.request, format, overwrite);
+    // The export's progress is its own phase: a client never takes it for the run's stages.
+    const started = performance.now();
+    const exportEvent = (
+      stage: string,
+      done: number,
+      total: number,
+      etaMs: number | null,
+    ): ProgressEvent => ({
+      runId,
+      phase: 'export',
+      done,
+      total,
+      reused: 0,
+      currentSubject: null,
+      elapsedMs: performance.now() - started,
+      etaMs,
+      failures: [],
+      message: stage,
+    });
+    const begin = exportEvent('tables', 0, 0, null);
+    s.exporting = begin;
     try {
-      // The run's own files, byte for byte: nothing is computed again.
-      for (const name of tables.files) await folder.writeFile(name, await readFile(join(tables.dir, name)));
-      await folder.finish('complete');
-      return { files: folder.files() };
+      const folder = await openRunFolder(dir, s.request, format, overwrite).catch((e: unknown) => {
+        throw exportRefusal(e, dir);
+      });
+      this.emit(begin);
+      try {
+        // The run's own files, byte for byte: nothing is computed again. One event per file.
+        let done = 0;
+        for (const name of tables.files) {
+          this.emit(exportEvent(name, done, tables.files.length, null));
+          await folder.writeFile(name, await readFile(join(tables.dir, name)));
+          done++;
+        }
+        await folder.finish('complete');
+        this.emit(exportEvent('written', done, tables.files.length, 0));
+        return { files: folder.files() };
+      } finally {
+        await folder.release();
+      }
     } finally {
-      await folder.release();
+      s.exporting = null;
     }
   }
+}
+
+/**
+ * The output folder's refusal in the app's words: exportRun is called from the app only, where
+ * the choice is a checkbox or a button, not --force. The reason's code stays on the error.
+ */
+function exportRefusal(e: unknown, dir: string): unknown {
+  if (!(e instanceof OutDirError)) return e;
+  const words: Partial<Record<OutDirErrorCode, string>> = {
+    'finished-run': `${dir} already holds the tables of an earlier Loopwise run. Replace them (files Loopwise did not write stay), or choose another folder.`,
+    'foreign-files': `${dir} already holds files Loopwise did not write. Write beside them (they are left alone), or choose an empty folder.`,
+    'unfinished-run': `${dir} holds an unfinished Loopwise run with other settings. Replace it, or choose another folder.`,
+  };
+  const text = words[e.code as OutDirErrorCode];
+  return text ? new OutDirError(text, e.code) : e;
 }
 
 /** A call the run's state does not allow (e.g. exporting a run that failed): a conflict, not a fault. */

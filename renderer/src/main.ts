@@ -6,7 +6,11 @@ import { Session } from './lib/session.svelte.ts';
 
 const target = document.getElementById('app') as HTMLElement;
 try {
-  const session = new Session(connect(window as unknown as Parameters<typeof connect>[0]));
+  // sessionStorage: a reload of this tab keeps its choices; another tab starts afresh.
+  const session = new Session(
+    connect(window as unknown as Parameters<typeof connect>[0]),
+    window.sessionStorage,
+  );
   mount(App, { target, props: { session } });
   void session.init();
 } catch (e) {

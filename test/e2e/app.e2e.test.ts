@@ -72,6 +72,22 @@ function pngChunks(bytes: Buffer): Array<[string, Buffer]> {
   return out;
 }
 
+/**
+ * No plot on the page offers a control that sends data off the machine: every modebar button's
+ * title and attribute are read, and none shares, uploads or links to a cloud service. Returns
+ * how many buttons were looked at, so a caller can tell the check was not vacuous.
+ */
+async function noCloudControls(): Promise<number> {
+  const titles = await page
+    .locator('.plot .modebar-btn')
+    .evaluateAll((els) =>
+      els.map((e) => `${e.getAttribute('data-title') ?? ''} ${e.getAttribute('data-attr') ?? ''}`),
+    );
+  for (const t of titles) expect(t).not.toMatch(/share|cloud|upload|chart studio/i);
+  expect(await page.locator('.plot a[href]').count()).toBe(0);
+  return titles.length;
+}
+
 async function runAnalysis(expectStatus = 'done'): Promise<string> {
   await tab('Analysis');
   await page.locator('input[name=permutations]').fill('199');
@@ -170,6 +186,7 @@ describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
     expect(await plot(`distribution-${featureName}`).locator('.violinlayer .trace').count()).toBe(
       sample.groups.length,
     );
+    expect(await noCloudControls()).toBeGreaterThan(0);
     await shot('3-groups');
   });
 
@@ -197,6 +214,7 @@ describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
     expect(sessions.sort()).toEqual(sample.sessions.map((x) => x.replace(/^ses-/, '')).sort());
     await drawn(`regions-${measure}-axial`);
     await drawn(`regions-${measure}-sagittal`);
+    expect(await noCloudControls()).toBeGreaterThan(0);
     await shot('4-regions');
   });
 
@@ -222,7 +240,8 @@ describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
       await plot('persistence-diagram').locator('.scatterlayer .trace').last().locator('.point').count(),
     ).toBe(1);
     // The cycle's edges are drawn on both projections.
-    const edges = plot('cycle-axial').locator('.scatterlayer .trace').nth(1).locator('path.js-line');
+    // Trace 0 is the outline of the node cloud, 1 the nodes, 2 the cycle's edges.
+    const edges = plot('cycle-axial').locator('.scatterlayer .trace').nth(2).locator('path.js-line');
     expect(await edges.count()).toBeGreaterThan(0);
     expect(await edges.first().getAttribute('d')).toMatch(/^M.+L/);
     expect(id).toMatch(/^1:\d+$/);
@@ -239,6 +258,7 @@ describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
     expect(await heading.textContent()).toMatch(/Selected: H1 \[/);
     const bar = plot('barcode').locator('.scatterlayer .trace').last().locator('path.js-line');
     expect(await bar.count()).toBe(1);
+    expect(await noCloudControls()).toBeGreaterThan(0);
     await shot('5-subject');
   });
 
@@ -255,9 +275,16 @@ describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
     expect(Object.keys(provenance.inputHashes)).toHaveLength(sample.scans.length);
     await shot('6-export');
 
-    // A second export to the same folder is refused: nothing the user made is overwritten.
+    // A second export to the same folder is refused in the app's words (no CLI flag), with an
+    // explicit choice to replace: nothing is overwritten without it.
     await page.getByRole('button', { name: 'Export tables' }).click();
-    await expect.poll(() => page.getByTestId('export-message').textContent()).toMatch(/HTTP 409/);
+    const refusal = page.getByTestId('export-message');
+    await expect.poll(() => refusal.textContent()).toMatch(/earlier Loopwise run\. Replace them/);
+    expect(await refusal.textContent()).not.toMatch(/--force|HTTP/);
+    await refusal.getByRole('button', { name: 'Replace the earlier files in this folder' }).click();
+    await page.getByTestId('export-done').waitFor({ timeout: 60_000 });
+    expect(readdirSync(target)).toContain('stats.tsv');
+    await shot('6b-export-replaced');
 
     // One click saves the table and its provenance sidecar.
     const saved = new Map<string, string>();
@@ -312,6 +339,9 @@ describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
     await drawn('subject-map-mds');
     // Two clicks on the subject map fill A, then B, and compare them.
     const points = plot('subject-map-mds').locator('.scatterlayer .trace .point');
+    // The mouse clicks at viewport positions: the map must be in view (the views' help text and
+    // notices push it down).
+    await plot('subject-map-mds').scrollIntoViewIfNeeded();
     for (const k of [0, 5]) {
       const box = await points.nth(k).boundingBox();
       expect(box).not.toBeNull();
@@ -378,6 +408,71 @@ describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
     await shot('9-group-filtrations');
   });
 
+  it('after an export, the run panel shows the run as it ended and the next run starts', async () => {
+    await tab('Analysis');
+    // Not "Running statistics 18 / 19": the export's progress is the export's.
+    expect(await page.getByRole('progressbar').getAttribute('aria-valuenow')).toBe('100');
+    expect(await page.getByTestId('run-progress').textContent()).toMatch(/Done/);
+    expect(await page.getByRole('button', { name: 'Run analysis' }).isDisabled()).toBe(false);
+    const before = (await page.getByTestId('run-summary').textContent()) ?? '';
+    const previous = /(run-\d+)/.exec(before)?.[1];
+    const text = await runAnalysis();
+    expect(text).not.toContain(previous!);
+    // The previous results are not thrown away in silence.
+    expect(await page.getByTestId('notice').textContent()).toContain(`results of ${previous} stay listed`);
+  });
+
+  it('lists earlier runs and reopens one with its results', async () => {
+    await tab('Analysis');
+    const runs = page.getByTestId('runs');
+    const listed = await runs.locator('tbody tr').count();
+    expect(listed).toBeGreaterThanOrEqual(3);
+    await runs.getByRole('button', { name: 'Open run-1', exact: true }).click();
+    // A finished run opens on its results (Groups); the run panel then names it.
+    await expect.poll(() => page.locator('nav button.active').textContent()).toBe('Groups');
+    await drawn('curve-betti1');
+    await tab('Analysis');
+    await expect.poll(() => page.getByTestId('run-summary').textContent()).toMatch(/^run-1 · Run done/);
+    await shot('11-runs');
+  });
+
+  it('a reload mid-run reattaches to the run with its progress, and keeps the choices', async () => {
+    await tab('Analysis');
+    // Another transform: every filtration is computed again, so the run lasts a while.
+    await page.locator('select[name=transform]').selectOption('sqrt');
+    await page.locator('input[name=permutations]').fill('1999');
+    await page.locator('input[name=permutations]').dispatchEvent('change');
+    await page.getByRole('button', { name: 'Run analysis' }).click();
+    await page.getByTestId('run-progress').waitFor();
+    await expect.poll(() => page.getByTestId('run-progress').textContent()).toMatch(/Computing/);
+    const runId = (await page.getByTestId('runs').locator('tr.current td').first().textContent())?.trim();
+    expect(runId).toMatch(/^run-\d+$/);
+    const state = async () => {
+      const res = await page.evaluate(
+        async () =>
+          (
+            await fetch('/api/listRuns', {
+              method: 'POST',
+              headers: { 'content-type': 'application/json' },
+              body: '[]',
+            })
+          ).json() as Promise<Array<{ runId: string; status: string }>>,
+      );
+      return res.find((r) => r.runId === runId)?.status;
+    };
+    expect(await state()).toBe('running');
+    await page.reload();
+    // The same run, with its progress, not an empty start screen; the form keeps the choices.
+    await page.getByTestId('run-progress').waitFor();
+    expect(await page.getByTestId('runs').locator('tr.current td').first().textContent()).toBe(runId);
+    expect(await page.locator('select[name=transform]').inputValue()).toBe('sqrt');
+    expect(await page.locator('input[name=permutations]').inputValue()).toBe('1999');
+    await shot('12-reattached');
+    const summary = page.getByTestId('run-summary');
+    await summary.waitFor({ timeout: 170_000 });
+    expect(await summary.textContent()).toMatch(new RegExp(`^${runId} · Run done`));
+  });
+
   it('shows a malformed cohort’s findings and still runs its good subjects', async () => {
     await tab('Study');
     await page.locator('input[name=cohort-dir]').fill(messyCohort);
@@ -412,7 +507,7 @@ describe.skipIf(!hasChromium)('Loopwise in Chromium (browser mode)', () => {
 
   it('logged no errors in the page', () => {
     // The two refusals the tests provoke are expected: a folder outside the session's (403) and
-    // an export over earlier results (409).
+    // an export over earlier results (409). A reload mid-run may cut the event stream.
     expect(browser.errors.filter((e) => !/(HTTP|status of) (403|409)/.test(e))).toEqual([]);
   });
 });

@@ -57,7 +57,9 @@ describe('Study', () => {
 
     await fireEvent.change(screen.getByRole('combobox', { name: 'Show' }), { target: { value: 'warning' } });
     expect(within(screen.getByTestId('qc-report')).getAllByRole('row')).toHaveLength(2);
-    await fireEvent.input(screen.getByRole('searchbox'), { target: { value: 'sub-10' } });
+    await fireEvent.input(screen.getByPlaceholderText('Filter by subject, file or text'), {
+      target: { value: 'sub-10' },
+    });
     expect(screen.queryByTestId('qc-report')!.querySelectorAll('tbody tr')).toHaveLength(0);
   });
 

@@ -136,6 +136,26 @@ describe('Electron IPC', () => {
     await expect(call('exportRun', ['run-1', join(out, 'tables'), true])).resolves.toBeTruthy();
   });
 
+  it('carries an output folder refusal’s code at the end of the message (IPC keeps only messages)', async () => {
+    await expect(call('exportRun', ['run-1', join(out, 'taken'), false])).rejects.toThrow(
+      /already holds results; .* \[finished-run\]$/,
+    );
+    await expect(call('exportRun', ['run-1', join(out, 'taken'), true])).resolves.toBeTruthy();
+  });
+
+  it('lists the session’s runs (listRuns) and takes no arguments for it', async () => {
+    const { settings, stats } = await api.defaultSettings();
+    const { runId } = (await call('startRun', [
+      { cohort: { dir: sample }, settings, stats: { ...stats, groupColumn: null }, outDir: null },
+    ])) as { runId: string };
+    const runs = (await call('listRuns', [])) as Array<{
+      runId: string;
+      request: { cohort: { dir: string } };
+    }>;
+    expect(runs.find((r) => r.runId === runId)?.request.cohort.dir).toBe(sample);
+    await expect(call('listRuns', [1])).rejects.toThrow(/takes 0 arguments/);
+  });
+
   it('forwards the results queries after checking their arguments, as the browser door does', async () => {
     const { settings, stats } = await api.defaultSettings();
     const { runId } = (await call('startRun', [

@@ -14,6 +14,7 @@ import type {
   FiltrationSide,
   LoopwiseApi,
   ProgressEvent,
+  RunInfo,
   RunSummary,
   StartRunRequest,
   StatsSettings,
@@ -91,7 +92,16 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
   const listeners = new Set<(e: ProgressEvent) => void>();
   const ids = Array.from({ length: 10 }, (_, i) => `sub-${String(i + 1).padStart(2, '0')}`);
   const groupOf = (i: number) => (i % 2 === 0 ? 'control' : 'patient');
-  const runs = new Map<string, { req: StartRunRequest; cancelled: boolean; output?: StageOutput }>();
+  const runs = new Map<
+    string,
+    {
+      req: StartRunRequest;
+      cancelled: boolean;
+      output?: StageOutput;
+      startedAt: string;
+      last: ProgressEvent | null;
+    }
+  >();
 
   const report = (): CohortReport => ({
     root,
@@ -376,6 +386,8 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
   };
 
   const emit = (e: ProgressEvent) => {
+    const run = runs.get(e.runId);
+    if (run && e.phase !== 'export') run.last = e;
     for (const l of listeners) l(e);
   };
 
@@ -393,7 +405,7 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
     async startRun(req) {
       calls.push({ method: 'startRun', args: [req] });
       const runId = `run-${runs.size + 1}`;
-      runs.set(runId, { req, cancelled: false });
+      runs.set(runId, { req, cancelled: false, startedAt: new Date(0).toISOString(), last: null });
       const total = 9;
       let done = 0;
       const tick = () => {
@@ -439,6 +451,21 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
     onProgress(listener) {
       listeners.add(listener);
       return () => listeners.delete(listener);
+    },
+    async listRuns(): Promise<RunInfo[]> {
+      calls.push({ method: 'listRuns', args: [] });
+      return [...runs].map(([runId, r]) => ({
+        runId,
+        status: r.cancelled
+          ? 'cancelled'
+          : r.last?.phase === 'done' || r.last?.phase === 'failed'
+            ? r.last.phase
+            : 'running',
+        startedAt: r.startedAt,
+        request: { cohort: r.req.cohort, settings: r.req.settings, stats: r.req.stats, outDir: r.req.outDir },
+        progress: r.last,
+        exporting: null,
+      }));
     },
     async runSummary(runId): Promise<RunSummary | null> {
       calls.push({ method: 'runSummary', args: [runId] });
@@ -535,7 +562,11 @@ export function createFakeApi(opts: { root?: string } = {}): FakeApi {
         throw e;
       }
       if (outDir.endsWith('taken') && !overwrite) {
-        const e = new Error(`${outDir} already holds results; choose another folder or allow replacing`);
+        // As the service's OutDirError, with the rule's code the app offers its way out by.
+        const e = Object.assign(
+          new Error(`${outDir} already holds results; choose another folder or allow replacing`),
+          { code: 'finished-run' },
+        );
         e.name = 'OutDirError';
         throw e;
       }

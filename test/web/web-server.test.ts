@@ -118,8 +118,55 @@ describe('browser-mode server', () => {
   it('answers 409 with the reason when the service refuses to overwrite earlier results', async () => {
     const res = await post('exportRun', ['run-1', join(out, 'taken'), false]);
     expect(res.status).toBe(409);
-    expect((await res.json()).error).toMatch(/already holds results/);
+    const body = await res.json();
+    expect(body.error).toMatch(/already holds results/);
+    // The rule's code travels too, so the app can offer the explicit "replace" choice.
+    expect(body.code).toBe('finished-run');
     expect((await post('exportRun', ['run-1', join(out, 'taken'), true])).status).toBe(200);
+    // The browser client hands both to the renderer on the error.
+    const client = createHttpClient({ base, token: server.token });
+    const e = await client.exportRun('run-1', join(out, 'taken'), false).catch((x: unknown) => x);
+    expect(e).toMatchObject({ code: 'finished-run', status: 409 });
+  });
+
+  it('lists the session’s runs with their state and request (listRuns), for a page that reattaches', async () => {
+    const started = (await (
+      await post('startRun', [
+        {
+          cohort: { dir: cohort },
+          settings: (await (await post('defaultSettings', [])).json()).settings,
+          stats: { ...(await (await post('defaultSettings', [])).json()).stats, groupColumn: null },
+          outDir: null,
+        },
+      ])
+    ).json()) as { runId: string };
+    const res = await post('listRuns', []);
+    expect(res.status).toBe(200);
+    const runs = (await res.json()) as Array<{
+      runId: string;
+      status: string;
+      request: { cohort: { dir: string } };
+    }>;
+    const mine = runs.find((r) => r.runId === started.runId);
+    expect(mine?.request.cohort.dir).toBe(cohort);
+    expect(['running', 'done']).toContain(mine?.status);
+    expect((await post('listRuns', ['extra'])).status).toBe(400);
+    const client = createHttpClient({ base, token: server.token });
+    expect((await client.listRuns()).map((r) => r.runId)).toContain(started.runId);
+  });
+
+  it('tells the page when the service stops answering (onConnection)', async () => {
+    const seen: boolean[] = [];
+    const client = createHttpClient({
+      base: 'http://127.0.0.1:1',
+      token: 'x',
+      fetch: async () => {
+        throw new TypeError('fetch failed');
+      },
+    });
+    client.onConnection?.((up) => seen.push(up));
+    await expect(client.listRuns()).rejects.toThrow(/does not answer/);
+    expect(seen).toEqual([false]);
   });
 
   it('answers 409, not 500, when the run to export did not finish (the service’s RunStateError)', async () => {

@@ -25,12 +25,33 @@ export function loadPlotly(): Promise<PlotlyLike> {
   return loading;
 }
 
+/**
+ * Every chart's configuration. Nothing leaves the machine: Plotly's "Share chart…" button
+ * (`sendChartToCloud` in plotly.js 3+; `sendDataToCloud` before) uploads the figure to an external
+ * service, so it is switched off (`showSendToCloud`), removed under both names, and given no
+ * server to send to. Our own export buttons add provenance; Plotly's image button would not.
+ */
 export const PLOT_CONFIG = {
   displaylogo: false,
   responsive: true,
-  // Our own export buttons add provenance; Plotly's would not.
-  modeBarButtonsToRemove: ['toImage', 'sendDataToCloud', 'select2d', 'lasso2d'],
+  showSendToCloud: false,
+  plotlyServerURL: '',
+  modeBarButtonsToRemove: ['toImage', 'sendChartToCloud', 'sendDataToCloud', 'select2d', 'lasso2d'],
 };
+
+/**
+ * The layout with every axis's hover values to 4 significant digits (d3-format '.4~g', trailing
+ * zeros dropped), unless the figure sets its own: hover texts never show 0.30000000000000004.
+ */
+export function readableLayout(layout: Record<string, unknown>): Record<string, unknown> {
+  const out: Record<string, unknown> = { ...layout };
+  const axes = new Set(['xaxis', 'yaxis', ...Object.keys(layout).filter((k) => /^[xy]axis\d*$/.test(k))]);
+  for (const k of axes) {
+    const axis = (layout[k] ?? {}) as Record<string, unknown>;
+    out[k] = { hoverformat: '.4~g', ...axis };
+  }
+  return out;
+}
 
 let warmed: Promise<void> | null = null;
 
@@ -75,7 +96,7 @@ export function draw(el: HTMLElement, fig: Figure): Promise<PlotlyLike> {
     if (!el.isConnected) return Plotly;
     // A user-timing entry per chart (DevTools' Timings track; the end-to-end tests read them).
     const start = performance.now();
-    await Plotly.react(el, fig.data, { autosize: true, ...fig.layout }, PLOT_CONFIG);
+    await Plotly.react(el, fig.data, readableLayout({ autosize: true, ...fig.layout }), PLOT_CONFIG);
     performance.measure(`draw ${fig.name}`, { start });
     return Plotly;
   });

@@ -2,7 +2,7 @@
 import type { NodeInfo, SubjectResult } from '../../../electron/api.ts';
 import { regionName, regionNumber } from '../../../electron/engine/features/columns.ts';
 import { baseLayout, type Figure, type Trace } from './figure.ts';
-import type { NodeLayout } from './layout.ts';
+import { networkBlocks, outlineTrace, spreadLabels, type NodeLayout } from './layout.ts';
 
 export interface IntervalRow {
   /** Stable id across both plots: `${dim}:${k}`, k the position in the subject's H_dim diagram. */
@@ -146,7 +146,9 @@ export function diagramFigure(rows: IntervalRow[], selected: string | null): Fig
         symbol: mine.map((r) => (r.death === null ? 'triangle-up' : 'circle')),
         line: { color: '#fff', width: 1 },
       },
-      hovertemplate: `H${dim} (%{x:.3f}, %{y:.3f})<extra></extra>`,
+      hovertemplate: `H${dim}: born %{x:.3~g}, dies %{y:.3~g}<extra></extra>`,
+      // H0 classes are born at 0: their markers sit on the axis and must not be cut in half.
+      cliponaxis: false,
     });
   }
   const sel = rows.find((r) => r.id === selected);
@@ -159,14 +161,16 @@ export function diagramFigure(rows: IntervalRow[], selected: string | null): Fig
       y: [sel.death ?? inf],
       marker: { size: 16, color: 'rgba(0,0,0,0)', line: { color: '#000', width: 3 } },
       hoverinfo: 'skip',
+      cliponaxis: false,
     });
   }
+  const pad = inf * 0.04;
   return {
     name: 'persistence-diagram',
     data,
     layout: baseLayout('Persistence diagram', {
-      xaxis: { title: { text: 'birth' }, range: [0, inf * 1.03] },
-      yaxis: { title: { text: 'death' }, range: [0, inf * 1.03] },
+      xaxis: { title: { text: 'birth' }, range: [-pad, inf + pad], zeroline: true, zerolinecolor: '#ddd' },
+      yaxis: { title: { text: 'death' }, range: [-pad, inf + pad], zeroline: true, zerolinecolor: '#ddd' },
       annotations: [{ x: 0, y: inf, text: '∞', showarrow: false, xanchor: 'right', font: { size: 14 } }],
     }),
   };
@@ -193,9 +197,46 @@ export function heatmapFigure(s: SubjectResult, nodes: NodeInfo[]): Figure {
       if (i !== j && Number.isFinite(row[j])) maxAbs = Math.max(maxAbs, Math.abs(row[j]));
     z.push(row);
   }
-  const labels = Array.from({ length: s.n }, (_, i) =>
-    regionName(i, nodes.length === s.n ? nodes[i].label : null),
-  );
+  const named = nodes.length === s.n;
+  const labels = Array.from({ length: s.n }, (_, i) => regionName(i, named ? nodes[i].label : null));
+  // Networks (from the node table): a line between consecutive blocks, and the network's name
+  // as the axis label of its block where the regions are too many to label one by one.
+  const blocks = named ? networkBlocks(nodes) : [];
+  const few = s.n <= 40;
+  const edge = [-0.5, s.n - 0.5];
+  const line = { color: '#222', width: 1 };
+  // In the regions' own coordinates, so the lines stop at the matrix's edges.
+  const separators = blocks.slice(1).flatMap((b) => [
+    {
+      type: 'line',
+      xref: 'x',
+      yref: 'y',
+      x0: b.start - 0.5,
+      x1: b.start - 0.5,
+      y0: edge[0],
+      y1: edge[1],
+      line,
+    },
+    {
+      type: 'line',
+      xref: 'x',
+      yref: 'y',
+      y0: b.start - 0.5,
+      y1: b.start - 0.5,
+      x0: edge[0],
+      x1: edge[1],
+      line,
+    },
+  ]);
+  const blockTicks =
+    !few && blocks.length > 0
+      ? {
+          tickmode: 'array',
+          tickvals: blocks.map((b) => labels[Math.floor((b.start + b.end) / 2)]),
+          ticktext: blocks.map((b) => b.network),
+        }
+      : {};
+  const axis = { showticklabels: few || blocks.length > 0, tickfont: { size: few ? 9 : 10 }, ...blockTicks };
   return {
     name: `matrix-${s.id}`,
     data: [
@@ -208,13 +249,15 @@ export function heatmapFigure(s: SubjectResult, nodes: NodeInfo[]): Figure {
         colorscale: 'RdBu',
         zmin: -maxAbs,
         zmax: maxAbs,
-        hovertemplate: '%{y} – %{x}: %{z:.3f}<extra></extra>',
+        hovertemplate: '%{y} – %{x}: %{z:.3~g}<extra></extra>',
       },
     ],
     layout: baseLayout(`Matrix of ${s.id}`, {
-      yaxis: { autorange: 'reversed', scaleanchor: 'x', showticklabels: s.n <= 40 },
-      xaxis: { showticklabels: s.n <= 40 },
-      height: 460,
+      yaxis: { autorange: 'reversed', scaleanchor: 'x', ...axis },
+      xaxis: { tickangle: -90, ...axis },
+      shapes: separators,
+      margin: { l: 90, r: 20, t: 40, b: 90 },
+      height: 520,
     }),
   };
 }
@@ -238,9 +281,16 @@ export function cycleFigure(
   const inCycle = new Set(rep?.nodes ?? []);
   const cycleNodes = layout.nodes.filter((n) => inCycle.has(n.index));
   const circle = layout.kind === 'circle';
+  // Labels that would overlap are left to the hover text; the others sit away from the cycle's centre.
+  const xs = layout.nodes.map((n) => n.x);
+  const ys = layout.nodes.map((n) => n.y);
+  const extent = Math.max(Math.max(...xs) - Math.min(...xs), Math.max(...ys) - Math.min(...ys)) || 1;
+  const labels = spreadLabels(cycleNodes, extent * 0.1);
+  const outline = outlineTrace(layout);
   return {
     name: `cycle-${layout.kind}`,
     data: [
+      ...(outline ? [outline] : []),
       {
         type: 'scatter',
         mode: 'markers',
@@ -265,10 +315,12 @@ export function cycleFigure(
         mode: 'markers+text',
         x: cycleNodes.map((n) => n.x),
         y: cycleNodes.map((n) => n.y),
-        text: cycleNodes.map((n) => n.label),
-        textposition: 'top center',
+        text: labels.text,
+        textposition: labels.position,
+        hovertext: cycleNodes.map((n) => n.label),
+        cliponaxis: false,
         marker: { size: 10, color: '#D55E00', line: { color: '#fff', width: 1 } },
-        hovertemplate: '%{text}<extra></extra>',
+        hovertemplate: '%{hovertext}<extra></extra>',
         showlegend: false,
       },
     ],
